@@ -1,0 +1,3 @@
+from sinkopt.cli import main
+
+raise SystemExit(main())

@@ -1,0 +1,233 @@
+"""Whole-sink hydraulics and thermal resistance of a shrouded plate-fin heatsink, composed from
+the single correlations in :mod:`convection`, :mod:`pressure_drop` and :mod:`fin`.
+
+Everything is vectorised over designs: pass equal-shaped (or broadcastable) arrays. Options are
+plain strings so the model and the study file can name them; each is listed in a module constant
+whose first entry is the default.
+"""
+from __future__ import annotations
+
+from typing import NamedTuple
+
+import numpy as np
+
+from sinkopt.physics import convection as cv
+from sinkopt.physics import fin as fn
+from sinkopt.physics import geometry as geo
+from sinkopt.physics import pressure_drop as pd_
+from sinkopt.physics.air import AirProperties
+
+__all__ = [
+    "HEAT_TRANSFER_MODELS",
+    "HYDRAULIC_DIAMETERS",
+    "FIN_TIPS",
+    "Hydraulics",
+    "Thermal",
+    "sink_hydraulics",
+    "sink_thermal",
+]
+
+#: ``teertstra``: Teertstra, Yovanovich & Culham (2000) composite, inlet-referenced (default:
+#: the method published for exactly this geometry). ``muzychka_yovanovich``: M–Y (2004)
+#: developing-flow Nusselt number with effectiveness–NTU.
+HEAT_TRANSFER_MODELS = ("teertstra", "muzychka_yovanovich")
+#: ``parallel_plates``: D_h = 2b, the published plate-fin convention (default, Culham & Muzychka
+#: 2001). ``rectangular``: D_h = 2bH/(b + H), consistent with the rectangular-duct f·Re; gives a
+#: higher pressure drop for short fins (REF-1: 69.70 vs 65.61 Pa).
+HYDRAULIC_DIAMETERS = ("parallel_plates", "rectangular")
+#: ``adiabatic``: fin tips touch the shroud (fully ducted sink, the published model's
+#: assumption; default). ``corrected_length``: convecting tip through L_c = H + t/2.
+FIN_TIPS = ("adiabatic", "corrected_length")
+
+
+class Hydraulics(NamedTuple):
+    gap: np.ndarray  #: fin gap b [m]
+    velocity: np.ndarray  #: mean channel velocity V [m/s]
+    hydraulic_diameter: np.ndarray  #: D_h [m]
+    reynolds: np.ndarray  #: Re_Dh [-]
+    l_plus: np.ndarray  #: L⁺ = L/(D_h Re_Dh) [-]
+    friction_apparent: np.ndarray  #: Fanning f_app (laminar/turbulent blend) [-]
+    contraction_loss: np.ndarray  #: K_c [-]
+    expansion_loss: np.ndarray  #: K_e [-]
+    pressure_drop: np.ndarray  #: static pressure drop across the sink [Pa]
+
+
+class Thermal(NamedTuple):
+    h: np.ndarray  #: heat transfer coefficient used for the fins [W/(m^2 K)]
+    fin_efficiency: np.ndarray  #: η_f [-]
+    surface_efficiency: np.ndarray  #: η_o [-]
+    resistance: np.ndarray  #: sink resistance, base to **inlet** air, including air heating [K/W]
+    resistance_convective: np.ndarray  #: the part without bulk air heating [K/W]
+    mass_flow_heat_capacity: np.ndarray  #: ṁ c_p [W/K]
+    reynolds_channel_star: np.ndarray  #: Re_b* = (V b/ν)(b/L) [-]
+    z_star: np.ndarray  #: L/(√A Re_√A Pr) of the channel [-]
+
+
+def _check_option(name, value, allowed):
+    if value not in allowed:
+        raise ValueError(f"{name} must be one of {', '.join(allowed)}; got {value!r}")
+
+
+def sink_hydraulics(width, length, fin_height, fin_thickness, n_fins, flow, air: AirProperties,
+                    hydraulic_diameter="parallel_plates", exit_loss="culham_muzychka") -> Hydraulics:
+    """Pressure drop of the fin array at a volume flow through the fins.
+
+    Parameters
+    ----------
+    width, length, fin_height, fin_thickness : array_like
+        W, L, H, t [m].
+    n_fins : array_like
+        N [-].
+    flow : array_like
+        Volume flow through the fin channels [m^3/s] at the air state ``air``.
+    air : AirProperties
+        Air at the inlet.
+    hydraulic_diameter : str
+        One of :data:`HYDRAULIC_DIAMETERS`.
+    exit_loss : str
+        One of :data:`sinkopt.physics.pressure_drop.EXIT_LOSS_MODELS`.
+
+    Notes
+    -----
+    Laminar: developing-flow apparent friction (Muzychka & Yovanovich composite with the
+    Shah & London f·Re at λ = b/H). Turbulent: Petukhov smooth-duct friction. Between Re_Dh 2300
+    and 4000 the two pressure drops are blended as described in
+    :func:`sinkopt.physics.convection.transition_weight`, so Δp rises monotonically with flow.
+
+    Examples
+    --------
+    REF-1 (physics.md §8): 65.6113 Pa.
+
+    >>> from sinkopt.physics.air import AirProperties
+    >>> air = AirProperties(1.184318, 1.844808e-5, 0.026247, 1006.308, 298.15, 101325.0)
+    >>> round(float(sink_hydraulics(0.05, 0.05, 0.025, 0.001, 20, 0.005, air).pressure_drop), 4)
+    65.6113
+    """
+    _check_option("hydraulic_diameter", hydraulic_diameter, HYDRAULIC_DIAMETERS)
+    _check_option("exit_loss", exit_loss, tuple(pd_.EXIT_LOSS_MODELS))
+    h = np.asarray(fin_height, dtype=float)
+    length = np.asarray(length, dtype=float)
+    b = geo.fin_gap(width, n_fins, fin_thickness)
+    velocity = np.asarray(flow, dtype=float) / geo.channel_flow_area(width, n_fins, fin_thickness, h)
+    if hydraulic_diameter == "parallel_plates":
+        dh = geo.hydraulic_diameter_parallel_plates(b)
+    else:
+        dh = geo.hydraulic_diameter_rectangular_channel(b, h)
+    re = air.density * velocity * dh / air.viscosity
+    aspect = np.minimum(b, h) / np.maximum(b, h)
+    fre = cv.fre_rectangular_duct_shah_london_1978(aspect)
+    l_plus = length / (dh * re)
+    f_lam = pd_.friction_apparent_developing_muzychka_yovanovich_2009(l_plus, fre) / re
+    f_turb = pd_.friction_fanning_turbulent_smooth(np.maximum(re, cv.RE_TRANSITION_START))
+    sigma = geo.open_area_ratio(width, n_fins, fin_thickness)
+    kc = pd_.contraction_loss_culham_muzychka_2001(sigma)
+    ke = pd_.EXIT_LOSS_MODELS[exit_loss](sigma)
+    dynamic = 0.5 * air.density * velocity**2
+    dp_lam = (kc + 4.0 * f_lam * length / dh + ke) * dynamic
+    dp_turb = (kc + 4.0 * f_turb * length / dh + ke) * dynamic
+    w = cv.transition_weight(re)
+    dp = (1.0 - w) * dp_lam + w * (dp_lam**5 + dp_turb**5) ** 0.2
+    f_app = (dp / dynamic - kc - ke) * dh / (4.0 * length)
+    return Hydraulics(b, velocity, dh, re, l_plus, f_app, kc, ke, dp)
+
+
+def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: AirProperties,
+                 conductivity, heat_transfer="teertstra", fin_tip="adiabatic",
+                 hydraulic_diameter="parallel_plates") -> Thermal:
+    """Thermal resistance from the sink base (assumed isothermal) to the inlet air.
+
+    Parameters
+    ----------
+    width, length, fin_height, fin_thickness : array_like
+        W, L, H, t [m].
+    n_fins : array_like
+        N [-].
+    flow : array_like
+        Volume flow through the fin channels [m^3/s].
+    air : AirProperties
+        Air at the inlet.
+    conductivity : array_like
+        Sink material conductivity [W/(m K)].
+    heat_transfer : str
+        One of :data:`HEAT_TRANSFER_MODELS`.
+    fin_tip : str
+        One of :data:`FIN_TIPS`.
+    hydraulic_diameter : str
+        Length scale of the turbulent branch (Gnielinski), one of :data:`HYDRAULIC_DIAMETERS`.
+
+    Notes
+    -----
+    Laminar (Teertstra): R = 1/(h (A_b + N η_f A_f)), already inlet referenced.
+    Laminar (Muzychka–Yovanovich) and turbulent (Gnielinski with Petukhov friction): an LMTD
+    coefficient, turned into an inlet-referenced resistance by effectiveness–NTU,
+    R = 1/(ε ṁ c_p), ε = 1 − exp(−NTU), NTU = h (A_b + N η_f A_f)/(ṁ c_p) (physics.md §7).
+    Laminar and turbulent conductances are blended between Re_Dh 2300 and 4000
+    (:func:`sinkopt.physics.convection.transition_weight`).
+
+    ``resistance_convective`` removes the bulk air heating, R − 1/(2 ṁ c_p) (the first terms of
+    1/ε = 1/NTU + 1/2 + NTU/12 + ...), floored at half of R; the model adds the local mixed-mean
+    air temperature at each device instead (physics.md §7).
+
+    Examples
+    --------
+    REF-1 (physics.md §8): R_hs = 0.369348 K/W with the adiabatic tip.
+
+    >>> from sinkopt.physics.air import AirProperties
+    >>> air = AirProperties(1.184318, 1.844808e-5, 0.026247, 1006.308, 298.15, 101325.0)
+    >>> round(float(sink_thermal(0.05, 0.05, 0.025, 0.001, 20, 0.005, air, 200.0).resistance), 6)
+    0.369348
+    """
+    _check_option("heat_transfer", heat_transfer, HEAT_TRANSFER_MODELS)
+    _check_option("fin_tip", fin_tip, FIN_TIPS)
+    _check_option("hydraulic_diameter", hydraulic_diameter, HYDRAULIC_DIAMETERS)
+    h_fin = np.asarray(fin_height, dtype=float)
+    length = np.asarray(length, dtype=float)
+    t = np.asarray(fin_thickness, dtype=float)
+    n = np.asarray(n_fins, dtype=float)
+    k_s = np.asarray(conductivity, dtype=float)
+    flow = np.asarray(flow, dtype=float)
+    b = geo.fin_gap(width, n, t)
+    velocity = flow / geo.channel_flow_area(width, n, t, h_fin)
+    nu_kin = air.viscosity / air.density
+    pr = air.prandtl
+    mcp = air.density * flow * air.heat_capacity
+    a_base = geo.exposed_base_area(width, n, t, length)
+    if fin_tip == "adiabatic":
+        fin_length, a_fin = h_fin, geo.fin_area(h_fin, length)
+    else:
+        fin_length, a_fin = fn.corrected_fin_length(h_fin, t), geo.fin_area(h_fin, length, t)
+
+    def finned_conductance(h):
+        eta = fn.fin_efficiency_straight_rectangular(fn.fin_parameter(h, k_s, t) * fin_length)
+        return h * (a_base + n * eta * a_fin), eta
+
+    re_b_star = velocity * b / nu_kin * b / length
+    sqrt_area = np.sqrt(b * h_fin)
+    z_star = length / (sqrt_area * (velocity * sqrt_area / nu_kin) * pr)
+    if heat_transfer == "teertstra":
+        h_lam = cv.nu_plate_fin_teertstra_2000(re_b_star, pr) * air.conductivity / b
+        g_lam, eta_lam = finned_conductance(h_lam)
+    else:
+        aspect = np.minimum(b, h_fin) / np.maximum(b, h_fin)
+        nu = cv.nu_sqrt_area_developing_muzychka_yovanovich_2004(z_star, pr, aspect)
+        h_lam = nu * air.conductivity / sqrt_area
+        ua, eta_lam = finned_conductance(h_lam)
+        g_lam = cv.effectiveness_isothermal_wall(ua / mcp) * mcp
+
+    dh = (geo.hydraulic_diameter_parallel_plates(b) if hydraulic_diameter == "parallel_plates"
+          else geo.hydraulic_diameter_rectangular_channel(b, h_fin))
+    re = velocity * dh / nu_kin
+    w = cv.transition_weight(re)
+    re_t = np.maximum(re, cv.RE_TRANSITION_START)
+    h_turb = cv.nu_turbulent_gnielinski_1976(
+        re_t, pr, cv.friction_darcy_smooth_petukhov_1970(re_t)) * air.conductivity / dh
+    ua_t, eta_t = finned_conductance(h_turb)
+    g_turb = cv.effectiveness_isothermal_wall(ua_t / mcp) * mcp
+    conductance = (1.0 - w) * g_lam + w * (g_lam**5 + g_turb**5) ** 0.2
+    resistance = 1.0 / conductance
+    h_used = (1.0 - w) * h_lam + w * h_turb
+    eta_f = (1.0 - w) * eta_lam + w * eta_t
+    a_total = a_base + n * a_fin
+    eta_o = fn.surface_efficiency(eta_f, n * a_fin, a_total)
+    r_conv = np.maximum(resistance - 0.5 / mcp, 0.5 * resistance)
+    return Thermal(h_used, eta_f, eta_o, resistance, r_conv, mcp, re_b_star, z_star)
