@@ -1,0 +1,53 @@
+"""Validity ranges of the correlations, as data in one registry.
+
+The model reports, per design, every correlation whose published range the design leaves; they
+are reported as warnings (and can be made constraints), never ignored.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+__all__ = ["Correlation", "REGISTRY", "out_of_range"]
+
+
+@dataclass(frozen=True)
+class Correlation:
+    name: str  #: the function that implements it
+    quantity: str  #: key of the evaluated quantity the range applies to
+    low: float
+    high: float
+    source: str
+    applies_when: str | None = None  #: key of a boolean array: only checked where it is True
+
+
+REGISTRY: tuple[Correlation, ...] = (
+    Correlation("nu_plate_fin_teertstra_2000", "reynolds_channel_star", 0.1, 100.0,
+                "Teertstra, Yovanovich & Culham 2000 (range from memory)", "uses_teertstra"),
+    Correlation("laminar_channel_flow", "reynolds_dh", 0.0, 2300.0,
+                "laminar developing-flow correlations; blended to turbulent above (common practice)",
+                "always"),
+    Correlation("nu_turbulent_gnielinski_1976", "reynolds_dh", 2300.0, 5e6, "Gnielinski 1976",
+                "uses_turbulent"),
+    Correlation("fin_corrected_length", "tip_biot_root", 0.0, 0.0625,
+                "Bergman et al. 2011 §3.6.4 (from memory)", "uses_corrected_length"),
+    Correlation("resistance_spreading_song_lee_au_1994", "sla_relative_radius", 0.0, 1.0,
+                "Song, Lee & Au 1994: source smaller than the base", "uses_fast_spreading"),
+    Correlation("air_properties_in_tool", "air_temperature_K", 233.15, 373.15,
+                "Sutherland fits checked against CoolProp 0-80 °C (physics.md §1)", "always"),
+)
+
+
+def out_of_range(quantities: dict[str, np.ndarray], n: int) -> dict[str, np.ndarray]:
+    """Boolean arrays (n,) per correlation name: True where the design leaves the range."""
+    flags: dict[str, np.ndarray] = {}
+    for c in REGISTRY:
+        if c.quantity not in quantities:
+            continue
+        value = np.broadcast_to(np.asarray(quantities[c.quantity], dtype=float), (n,))
+        when = (np.ones(n, dtype=bool) if c.applies_when in (None, "always")
+                else np.broadcast_to(np.asarray(quantities.get(c.applies_when, False)), (n,)))
+        bad = when & ~((value >= c.low) & (value <= c.high))
+        flags[c.name] = flags.get(c.name, np.zeros(n, dtype=bool)) | bad
+    return flags
