@@ -136,12 +136,17 @@ class ModelOptions:
     hydraulic_diameter: str = "parallel_plates"
     exit_loss: str = "culham_muzychka"
     fin_tip: str = "adiabatic"
-    #: ``fast``: Song–Lee–Au closed form (the search); ``exact``: Fourier series (reports).
-    spreading: str = "fast"
+    #: Base spreading: ``coarse``: the exact Fourier series truncated to ``coarse_terms`` (the
+    #: search's default: within ~1.5 % of the full series, 0.1 K, on multi-device layouts);
+    #: ``fast``: the Song–Lee–Au closed form (position-blind: measured up to 50 % off the series
+    #: for devices near an edge or each other); ``exact``: the series with ``series_terms``
+    #: (every reported design).
+    spreading: str = "coarse"
+    coarse_terms: int = 20
     #: ``local``: each device sees the mixed-mean air temperature at its centre (upstream
     #: devices' heat included); ``lumped``: one inlet-referenced sink resistance (physics.md §8).
     air_heating: str = "local"
-    series_terms: int = 150
+    series_terms: int = 300
 
 
 def _first_bad(mask: np.ndarray) -> int:

@@ -52,7 +52,7 @@ class Evaluation:
     junction_C: np.ndarray  #: (n, s) [°C]
     margin: np.ndarray  #: (n, s) tj_max − T_j [K]
     worst_margin: np.ndarray  #: (n,) [K]
-    spreading: str  #: "fast" or "exact"
+    spreading: str  #: "fast", "coarse" or "exact"
     out_of_range: dict[str, np.ndarray] = field(default_factory=dict)  #: name -> (n,) bool
 
     def __len__(self) -> int:
@@ -156,12 +156,15 @@ def evaluate(geometry: SinkGeometry, flow, devices: Sequence[Device], conductivi
     else:
         raise ValueError(f"air_heating must be 'local' or 'lumped'; got {options.air_heating!r}")
     h_eff = 1.0 / (r_film * base_area)
-    rise_fn = {"fast": sp.temperature_rise_rect_sources_song_lee_au,
-               "exact": sp.temperature_rise_rect_sources_muzychka_2003}[options.spreading]
+    if options.spreading not in ("fast", "coarse", "exact"):
+        raise ValueError(f"spreading must be 'fast', 'coarse' or 'exact'; got {options.spreading!r}")
+    rise_fn = (sp.temperature_rise_rect_sources_song_lee_au if options.spreading == "fast"
+               else sp.temperature_rise_rect_sources_muzychka_2003)
+    terms = options.coarse_terms if options.spreading == "coarse" else options.series_terms
     src = [np.array([getattr(d, a) for d in devices], dtype=float)
            for a in ("center_x", "center_y", "size_x", "size_y")]
     base_rise = np.asarray(rise_fn(g.width, g.length, g.base_thickness, conductivity, h_eff,
-                                   power, *src, n_terms=options.series_terms)).reshape(n, s)
+                                   power, *src, n_terms=terms)).reshape(n, s)
     r_jc = np.tile(np.array([d.r_jc for d in devices], dtype=float), (n, 1))
     r_stack = stack_resistances(devices, n, stack_choice)
     t_in = conditions.ambient_C

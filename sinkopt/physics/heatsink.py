@@ -113,7 +113,8 @@ def sink_hydraulics(width, length, fin_height, fin_thickness, n_fins, flow, air:
         dh = geo.hydraulic_diameter_parallel_plates(b)
     else:
         dh = geo.hydraulic_diameter_rectangular_channel(b, h)
-    re = air.density * velocity * dh / air.viscosity
+    # A floor on Re keeps Δp(0) = 0 (the fan solver evaluates the system at zero flow).
+    re = np.maximum(air.density * velocity * dh / air.viscosity, 1e-12)
     aspect = np.minimum(b, h) / np.maximum(b, h)
     fre = cv.fre_rectangular_duct_shah_london_1978(aspect)
     l_plus = length / (dh * re)

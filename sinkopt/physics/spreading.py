@@ -212,8 +212,9 @@ def resistance_spreading_rect_centered_yovanovich_1999(
           for x in (source_x, source_y, plate_x, plate_y, thickness, conductivity, h))
     )
     shape = arrays[0].shape
-    flat = [x.ravel() / 2 if i < 4 else x.ravel() for i, x in enumerate(arrays)]
-    r_s = _centered_series(*flat, n_terms=int(n_terms))
+    sizes, material = arrays[:4], arrays[4:]
+    half_sizes = [x.ravel() / 2 for x in sizes]  # the series is written in half sizes
+    r_s = _centered_series(*half_sizes, *(x.ravel() for x in material), n_terms=int(n_terms))
     return _scalar_out(r_s.reshape(shape))
 
 
