@@ -1,0 +1,158 @@
+"""A resolved design problem: what the study file describes, in SI units, ready for the search.
+
+The study-file reader (:mod:`sinkopt.study_file`) builds a :class:`Problem`; the evaluator
+(:mod:`sinkopt.system`) and the search (:mod:`sinkopt.search`) consume it. No I/O here.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from sinkopt.design import Conditions, Device, ModelOptions
+
+__all__ = [
+    "GEOMETRY_VARIABLES",
+    "OBJECTIVES",
+    "Variable",
+    "FanOption",
+    "AirSupply",
+    "ProcessLimits",
+    "Limits",
+    "Problem",
+]
+
+#: Geometric design variables: name -> (unit shown to users, factor from that unit to SI).
+GEOMETRY_VARIABLES = {
+    "width_mm": ("mm", 1e-3),
+    "length_mm": ("mm", 1e-3),
+    "fin_height_mm": ("mm", 1e-3),
+    "fin_thickness_mm": ("mm", 1e-3),
+    "n_fins": ("-", 1.0),
+    "base_thickness_mm": ("mm", 1e-3),
+}
+
+#: Objectives: name -> (result column, direction). Directions are Optuna's words.
+OBJECTIVES = {
+    "sink_volume": ("volume_cm3", "minimize"),
+    "sink_mass": ("mass_kg", "minimize"),
+    "fan_power": ("fan_power_W", "minimize"),
+    "junction_margin": ("worst_margin_K", "maximize"),
+    "air_rise": ("air_rise_K", "minimize"),
+    "noise": ("noise_dBA", "minimize"),
+}
+
+
+@dataclass(frozen=True)
+class Variable:
+    """One search variable. ``kind`` is ``int``, ``float`` or ``categorical``; a variable with
+    ``fixed`` set is not searched. Values are in the units the name carries (mm, -, ratio)."""
+
+    name: str
+    kind: str
+    low: float | None = None
+    high: float | None = None
+    step: float | None = None
+    choices: tuple[Any, ...] = ()
+    fixed: Any = None
+
+    @property
+    def is_fixed(self) -> bool:
+        return self.fixed is not None
+
+
+@dataclass(frozen=True)
+class FanOption:
+    """A candidate fan (one curve file) with its allowed counts, arrangement and speed range."""
+
+    key: str  #: unique short name used as the categorical choice
+    path: Path
+    curve: Any  #: sinkopt.fans.FanCurve
+    counts: tuple[int, ...] = (1,)
+    arrangement: str = "parallel"
+    speed_min: float = 1.0  #: fraction of the curve's rated speed
+    speed_max: float = 1.0
+    efficiency: float | None = None  #: total efficiency when the file has no power data
+
+
+@dataclass(frozen=True)
+class AirSupply:
+    """Where the air comes from: candidate fans, or a known flow / approach velocity."""
+
+    fans: tuple[FanOption, ...] = ()
+    fixed_flow_m3_s: float | None = None
+    approach_velocity_m_s: float | None = None
+    #: Extra system losses in series with the sink: Δp = K ρ V²/2 at V = Q/area ...
+    extra_loss_coefficient: float = 0.0
+    extra_loss_area_m2: float | None = None
+    #: ... and/or a measured impedance curve (flow [m^3/s], pressure [Pa]) at ρ_ref.
+    extra_impedance: tuple[tuple[float, ...], tuple[float, ...]] | None = None
+    extra_impedance_density: float = 1.2
+    ducted: bool = True
+    #: Duct cross-section around an unducted sink (bypass model), [m^2].
+    duct_area_m2: float | None = None
+    failed_fan_check: bool = False  #: also evaluate with one fan of the array stopped
+
+    @property
+    def uses_fans(self) -> bool:
+        return bool(self.fans)
+
+
+@dataclass(frozen=True)
+class ProcessLimits:
+    """Manufacturing limits of the sink's process (presets are common practice, no source)."""
+
+    name: str = "extruded"
+    min_fin_thickness_m: float = 1.0e-3
+    min_gap_m: float = 2.0e-3
+    max_fin_aspect: float = 10.0  #: fin height / gap
+    min_base_thickness_m: float = 2.0e-3
+
+
+@dataclass(frozen=True)
+class Limits:
+    """Constraints every feasible design meets. None: not constrained."""
+
+    min_junction_margin_K: float = 0.0
+    max_air_rise_K: float | None = None
+    max_noise_dBA: float | None = None
+    max_width_m: float | None = None
+    max_length_m: float | None = None
+    max_height_m: float | None = None  #: fins + base
+    max_mass_kg: float | None = None
+    max_fan_power_W: float | None = None
+    max_pressure_drop_Pa: float | None = None
+    allow_stall: bool = False
+
+
+@dataclass(frozen=True)
+class Problem:
+    name: str
+    conditions: Conditions
+    devices: tuple[Device, ...]
+    material_name: str
+    conductivity: float  #: [W/(m K)]
+    density: float  #: [kg/m^3]
+    process: ProcessLimits
+    variables: tuple[Variable, ...]  #: geometry, fan choice, count, speed, mounting
+    air: AirSupply
+    objectives: tuple[str, ...]  #: keys of OBJECTIVES
+    limits: Limits
+    options: ModelOptions = field(default_factory=ModelOptions)
+    trials: int = 300
+    seed: int | None = None
+    sampler: str = "tpe"
+    source: Path | None = None  #: the study file
+    inputs: tuple[Path, ...] = ()  #: every file read (study, fan curves, impedance curves)
+
+    def variable(self, name: str) -> Variable:
+        for v in self.variables:
+            if v.name == name:
+                return v
+        raise KeyError(name)
+
+    def fan(self, key: str) -> FanOption:
+        for f in self.air.fans:
+            if f.key == key:
+                return f
+        raise KeyError(key)
