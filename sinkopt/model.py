@@ -16,7 +16,7 @@ from sinkopt.physics import geometry as geo
 from sinkopt.physics import heatsink as hs
 from sinkopt.physics import spreading as sp
 from sinkopt.physics.air import air_properties, pressure_standard_atmosphere_1976
-from sinkopt.validity import out_of_range
+from sinkopt.validity import describe, out_of_range
 
 __all__ = ["Evaluation", "evaluate", "inlet_air", "stack_resistances", "upstream_heat_fraction"]
 
@@ -54,14 +54,15 @@ class Evaluation:
     worst_margin: np.ndarray  #: (n,) [K]
     spreading: str  #: "fast", "coarse" or "exact"
     out_of_range: dict[str, np.ndarray] = field(default_factory=dict)  #: name -> (n,) bool
+    range_quantities: dict[str, np.ndarray] = field(default_factory=dict)
 
     def __len__(self) -> int:
         return int(self.flow.shape[0])
 
     def warnings(self, i: int) -> list[str]:
         """Names of the correlations design ``i`` uses outside their validity range."""
-        return [f"{name}: outside its validity range" for name, bad in self.out_of_range.items()
-                if bad[i]]
+        return [describe(name, self.range_quantities, i)
+                for name, bad in self.out_of_range.items() if bad[i]]
 
 
 def inlet_air(conditions: Conditions):
@@ -178,6 +179,7 @@ def evaluate(geometry: SinkGeometry, flow, devices: Sequence[Device], conductivi
     quantities = {
         "reynolds_channel_star": th.reynolds_channel_star,
         "reynolds_dh": hyd.reynolds,
+        "transition_blend": ((w_turb > 0) & (w_turb < 1)).astype(float),
         "uses_teertstra": (options.heat_transfer == "teertstra") & (w_turb < 1.0),
         "uses_turbulent": w_turb > 0.0,
         "uses_corrected_length": options.fin_tip == "corrected_length",
@@ -200,5 +202,5 @@ def evaluate(geometry: SinkGeometry, flow, devices: Sequence[Device], conductivi
         fin_aspect=geo.fin_aspect_ratio(g.fin_height, hyd.gap),
         r_jc=r_jc, r_stack=r_stack, air_local_rise=air_local, base_rise=base_rise,
         junction_C=tj, margin=margin, worst_margin=worst, spreading=options.spreading,
-        out_of_range=out_of_range(quantities, n),
+        out_of_range=out_of_range(quantities, n), range_quantities=quantities,
     )

@@ -9,7 +9,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["Correlation", "REGISTRY", "out_of_range"]
+__all__ = ["Correlation", "REGISTRY", "out_of_range", "describe"]
 
 
 @dataclass(frozen=True)
@@ -25,9 +25,9 @@ class Correlation:
 REGISTRY: tuple[Correlation, ...] = (
     Correlation("nu_plate_fin_teertstra_2000", "reynolds_channel_star", 0.1, 100.0,
                 "Teertstra, Yovanovich & Culham 2000 (range from memory)", "uses_teertstra"),
-    Correlation("laminar_channel_flow", "reynolds_dh", 0.0, 2300.0,
-                "laminar developing-flow correlations; blended to turbulent above (common practice)",
-                "always"),
+    Correlation("laminar_turbulent_transition", "transition_blend", 0.0, 0.0,
+                "Re_Dh 2300-4000: laminar and turbulent results blended, lower confidence "
+                "(common practice)", "always"),
     Correlation("nu_turbulent_gnielinski_1976", "reynolds_dh", 2300.0, 5e6, "Gnielinski 1976",
                 "uses_turbulent"),
     Correlation("fin_corrected_length", "tip_biot_root", 0.0, 0.0625,
@@ -51,3 +51,17 @@ def out_of_range(quantities: dict[str, np.ndarray], n: int) -> dict[str, np.ndar
         bad = when & ~((value >= c.low) & (value <= c.high))
         flags[c.name] = flags.get(c.name, np.zeros(n, dtype=bool)) | bad
     return flags
+
+
+def describe(name: str, quantities: dict[str, np.ndarray], i: int) -> str:
+    """One warning line: the correlation, the value that left the range, the range, the source."""
+    for c in REGISTRY:
+        if c.name == name:
+            value = np.broadcast_to(np.asarray(quantities.get(c.quantity, np.nan), dtype=float),
+                                    np.shape(quantities.get("reynolds_dh", [0])))
+            v = float(value[i]) if value.ndim else float(value)
+            if c.quantity == "transition_blend":
+                return f"{name}: Re_Dh = {float(quantities['reynolds_dh'][i]):.0f}; {c.source}"
+            return (f"{name}: {c.quantity} = {v:.4g} outside {c.low:g}..{c.high:g} "
+                    f"({c.source})")
+    return f"{name}: outside its validity range"

@@ -1,0 +1,229 @@
+"""``sinkopt run`` and ``sinkopt evaluate``: search a study, or evaluate one design of it."""
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import time
+from pathlib import Path
+
+from sinkopt.errors import InputError
+
+__all__ = ["register", "parse_set"]
+
+EXIT_INFEASIBLE = 3
+EXIT_INTERRUPTED = 130
+
+
+def register(sub) -> None:
+    run = sub.add_parser(
+        "run", help="search a study for the Pareto front of sink and fan designs",
+        description="Run the multi-objective search of a study file and write a results folder "
+                    "(trials.csv, pareto.csv, designs/, run.json, report.html). Running again on "
+                    "the same folder resumes the search.",
+        formatter_class=argparse.RawDescriptionHelpFormatter)
+    run.add_argument("study", type=Path, help="study file (TOML)")
+    run.add_argument("--trials", type=int, default=None,
+                     help="total finished trials wanted (default: the study's [study].trials)")
+    run.add_argument("--timeout", type=float, default=None, help="stop after this many seconds")
+    run.add_argument("--seed", type=int, default=None, help="sampler seed (default: the study's, "
+                     "else drawn and recorded)")
+    run.add_argument("--sampler", choices=("tpe", "nsga2", "random", "gp"), default=None,
+                     help="search algorithm (default: the study's, else tpe)")
+    run.add_argument("--out", type=Path, default=None,
+                     help="results folder (default: results/<study name>)")
+    run.add_argument("--storage", default=None,
+                     help="Optuna storage URL, e.g. postgresql://user@host/db "
+                          "(default: a journal file in the results folder)")
+    run.add_argument("--batch", type=int, default=None, help="trials per vectorised batch")
+    run.add_argument("--no-report", action="store_true", help="skip report.html")
+    run.add_argument("--no-progress", action="store_true", help="no progress bar")
+    run.set_defaults(func=cmd_run)
+
+    ev = sub.add_parser(
+        "evaluate", help="evaluate one design of a study and print every quantity",
+        description="Evaluate one design (exact spreading series). Variables not given take "
+                    "their fixed value, or the middle of their range.")
+    ev.add_argument("study", type=Path)
+    ev.add_argument("--set", dest="sets", action="append", nargs="+", default=[],
+                    metavar="NAME=VALUE", help="design variable values, e.g. n_fins=18")
+    ev.add_argument("--json", action="store_true", help="print one JSON object on stdout")
+    ev.add_argument("--spreading", choices=("exact", "coarse", "fast"), default="exact")
+    ev.set_defaults(func=cmd_evaluate)
+
+
+def _load(path: Path):
+    from sinkopt.study_file import load_study
+
+    return load_study(path)
+
+
+def parse_set(problem, items: list[str]) -> dict:
+    """``name=value`` strings to a parameter dict, typed and range-checked per variable."""
+    params = {}
+    known = {v.name: v for v in problem.variables}
+    for item in items:
+        name, sep, text = item.partition("=")
+        if not sep:
+            raise InputError(f"expected NAME=VALUE, got {item!r}", field="--set")
+        name = name.strip()
+        if name not in known:
+            import difflib
+
+            close = difflib.get_close_matches(name, known, n=1)
+            hint = f"; did you mean {close[0]}?" if close else ""
+            raise InputError(f"unknown variable {name!r}{hint} (variables: {', '.join(known)})",
+                             field="--set")
+        v = known[name]
+        try:
+            if v.kind == "int":
+                value = int(float(text))
+            elif v.kind == "float":
+                value = float(text)
+            else:
+                value = text
+                choices = [str(c) for c in v.choices] or ([str(v.fixed)] if v.is_fixed else [])
+                if text not in choices:
+                    raise InputError(f"{text!r} is not one of {', '.join(choices)}",
+                                     field=f"--set {name}")
+        except ValueError as exc:
+            if isinstance(exc, InputError):
+                raise
+            raise InputError(f"expected a number, got {text!r}", field=f"--set {name}") from None
+        params[name] = value
+    for v in problem.variables:
+        if v.name in params or v.is_fixed:
+            continue
+        if v.kind == "categorical":
+            params[v.name] = v.choices[0]
+        elif v.kind == "int":
+            params[v.name] = int(round((v.low + v.high) / 2))
+        else:
+            params[v.name] = (v.low + v.high) / 2
+    return params
+
+
+def cmd_evaluate(args) -> int:
+    from sinkopt.results import design_record
+    from sinkopt.system import evaluate_params
+
+    problem = _load(args.study)
+    params = parse_set(problem, [s for group in args.sets for s in group])
+    result = evaluate_params(problem, [params], spreading=args.spreading)
+    rec = design_record(problem, result, 0)
+    if args.json:
+        json.dump(rec, sys.stdout, indent=2, allow_nan=False)
+        sys.stdout.write("\n")
+        return 0
+    _print_design(rec)
+    return 0
+
+
+def _fmt(v, unit="", digits=4):
+    if v is None:
+        return "n/a"
+    if isinstance(v, float):
+        return f"{v:.{digits}g}{(' ' + unit) if unit else ''}"
+    return f"{v}{(' ' + unit) if unit else ''}"
+
+
+def _print_design(rec: dict) -> None:
+    p = rec["params"]
+    print("design: " + ", ".join(f"{k}={_fmt(v)}" for k, v in p.items()))
+    print(f"  feasible            {rec['feasible']}")
+    print(f"  airflow             {_fmt(rec['airflow_m3_s'] and rec['airflow_m3_s'] * 3600, 'm3/h')}"
+          f"  ({_fmt(rec['airflow_m3_s'], 'm3/s')})")
+    print(f"  system pressure     {_fmt(rec['pressure_drop_Pa'], 'Pa')}")
+    print(f"  sink resistance     {_fmt(rec['sink_resistance_K_per_W'], 'K/W')} (base to inlet air)")
+    print(f"  fan power           {_fmt(rec['fan_power_W'], 'W')}")
+    print(f"  sink volume, mass   {_fmt(rec['volume_cm3'], 'cm3')}, {_fmt(rec['mass_kg'], 'kg')}")
+    print(f"  air out             {_fmt(rec['air_outlet_C'], '°C')} (rise {_fmt(rec['air_rise_K'], 'K')})")
+    print(f"  fin gap, aspect     {_fmt(rec['fin_gap_mm'], 'mm')}, {_fmt(rec['fin_aspect'])}")
+    print("  devices:")
+    for d in rec["devices"]:
+        print(f"    {d['name']:<16} Tj {_fmt(d['junction_C'], '°C')}  margin {_fmt(d['margin_K'], 'K')}"
+              f"  (limit {d['tj_max_C']} °C, mounting {d['mounting']})")
+    for w in rec["warnings"]:
+        print(f"  warning: {w}")
+
+
+class _Progress:
+    def __init__(self, total: int, enabled: bool):
+        self.bar = None
+        if enabled:
+            from tqdm import tqdm
+
+            self.bar = tqdm(total=total, unit="trial", disable=None, file=sys.stderr,
+                            dynamic_ncols=True)
+
+    def __call__(self, p) -> None:
+        if self.bar is None:
+            return
+        self.bar.n = min(p.done, self.bar.total)
+        margin = "n/a" if p.best_margin == float("-inf") else f"{p.best_margin:.1f} K"
+        self.bar.set_postfix_str(f"feasible {p.feasible}, pareto {p.pareto}, best margin {margin}",
+                                 refresh=False)
+        self.bar.refresh()
+
+    def close(self) -> None:
+        if self.bar is not None:
+            self.bar.close()
+
+
+def cmd_run(args) -> int:
+    import random
+
+    import optuna
+
+    from sinkopt.results import collect_results
+    from sinkopt.results_io import run_info, write_results
+    from sinkopt.search import DEFAULT_BATCH, fail_stale_trials, open_study, run_search, storage_for
+
+    problem = _load(args.study)
+    out = args.out or Path("results") / problem.name
+    out.mkdir(parents=True, exist_ok=True)
+    n_trials = args.trials or problem.trials
+    seed = args.seed if args.seed is not None else problem.seed
+    if seed is None:
+        seed = random.SystemRandom().randrange(2**31)
+    sampler = args.sampler or problem.sampler
+    optuna.logging.set_verbosity(optuna.logging.WARNING)
+    storage = storage_for(out, args.storage)
+    study = open_study(problem, storage, seed, sampler)
+    stale = fail_stale_trials(study)
+    if stale:
+        print(f"sinkopt: {stale} trial(s) left running by a stopped run were failed and queued "
+              "again", file=sys.stderr)
+    progress = _Progress(n_trials, not args.no_progress)
+    start = time.monotonic()
+    interrupted = False
+    try:
+        run_search(problem, study, n_trials, timeout=args.timeout,
+                   batch_size=args.batch or DEFAULT_BATCH, progress=progress)
+    except KeyboardInterrupt:
+        interrupted = True
+    finally:
+        progress.close()
+    results = collect_results(problem, study)
+    info = run_info(problem, seed=seed, sampler=sampler, n_trials=n_trials,
+                    command=sys.argv, storage_url=args.storage,
+                    elapsed_s=time.monotonic() - start, states=results.states)
+    write_results(results, out, info)
+    if not args.no_report:
+        try:
+            from sinkopt.report import write_report
+        except ImportError:
+            write_report = None
+        if write_report is not None:
+            write_report(results, out / "report.html", info)
+    n_front = len(results.pareto_trials)
+    print(f"{len(results.trial_numbers)} trials, {int(results.search.feasible.sum())} feasible "
+          f"(search model), {n_front} designs on the Pareto front -> {out}")
+    if interrupted:
+        print("sinkopt: interrupted; results saved, run again to resume", file=sys.stderr)
+        return EXIT_INTERRUPTED
+    if n_front == 0:
+        print("sinkopt: no feasible design found; see trials.csv for the closest ones",
+              file=sys.stderr)
+        return EXIT_INFEASIBLE
+    return 0

@@ -1,0 +1,170 @@
+"""Turn a finished (or interrupted) study into results: every trial's numbers, the Pareto front
+re-evaluated with the exact spreading series, and one detailed record per Pareto design.
+
+Optuna stores what the search saw (the truncated spreading series). The reported front is
+decided on the exact series, so every reported feasible design meets the constraints when it is
+recomputed, e.g. by ``sinkopt evaluate``.
+"""
+from __future__ import annotations
+
+import math
+import shlex
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+import optuna
+from optuna.trial import TrialState
+
+from sinkopt.pareto import nondominated_mask, to_minimization
+from sinkopt.problem import OBJECTIVES, Problem
+from sinkopt.system import BatchResult, evaluate_params
+
+__all__ = ["Results", "collect_results", "design_record", "evaluate_command",
+           "SCHEMA_VERSION", "REVIEW_MARGIN_K"]
+
+SCHEMA_VERSION = 1
+#: Designs that the search found infeasible by less than this junction margin are re-checked
+#: with the exact series too (the truncated series is within ~0.3 K, system.py).
+REVIEW_MARGIN_K = 1.0
+
+
+def _clean(v: Any) -> Any:
+    if isinstance(v, (np.floating, float)):
+        return None if not math.isfinite(float(v)) else float(v)
+    if isinstance(v, (np.integer,)):
+        return int(v)
+    if isinstance(v, np.bool_):
+        return bool(v)
+    return v
+
+
+def evaluate_command(problem: Problem, params: dict[str, Any]) -> str:
+    """A ``sinkopt evaluate`` command line that reproduces one design."""
+    study = str(problem.source) if problem.source else "STUDY.toml"
+    sets = []
+    for v in problem.variables:
+        if v.is_fixed or v.name not in params:
+            continue
+        value = params[v.name]
+        text = f"{value:.6g}" if isinstance(value, float) else str(value)
+        sets.append(f"{v.name}={text}")
+    return " ".join(["sinkopt", "evaluate", shlex.quote(study), "--set",
+                     *(shlex.quote(s) for s in sets)])
+
+
+def design_record(problem: Problem, result: BatchResult, i: int,
+                  trial: int | None = None, search_result: BatchResult | None = None,
+                  search_index: int | None = None) -> dict[str, Any]:
+    """Everything about design ``i`` of ``result`` as a JSON-ready dict (units in the keys)."""
+    e = result.evaluation
+    cols = result.columns()
+    rec: dict[str, Any] = {"schema_version": SCHEMA_VERSION, "trial": trial,
+                           "params": {k: _clean(v) for k, v in result.params[i].items()}}
+    for key in ("feasible", "fan", "speed_ratio", "airflow_m3_s", "airflow_fins_m3_s",
+                "pressure_drop_Pa", "sink_pressure_drop_Pa", "sink_resistance_K_per_W",
+                "fan_power_W", "noise_dBA", "volume_cm3", "mass_kg", "air_rise_K",
+                "air_outlet_C", "worst_margin_K", "fin_gap_mm", "fin_aspect",
+                "channel_velocity_m_s", "reynolds_dh", "in_stall", "no_airflow"):
+        rec[key] = _clean(cols[key][i])
+    rec["air_density_kg_m3"] = _clean(e.air_density[i])
+    rec["ambient_C"] = problem.conditions.ambient_C
+    rec["altitude_m"] = problem.conditions.altitude_m
+    rec["fin_efficiency"] = _clean(e.fin_efficiency[i])
+    rec["heat_transfer_coefficient_W_m2K"] = _clean(e.h[i])
+    rec["spreading"] = e.spreading
+    devices = []
+    for j, d in enumerate(problem.devices):
+        stack_name = result.params[i].get(f"mount_{d.name}", d.stacks[0].name if d.stacks else "")
+        devices.append({
+            "name": d.name, "power_W": d.power, "tj_max_C": d.tj_max,
+            "junction_C": _clean(e.junction_C[i, j]), "margin_K": _clean(e.margin[i, j]),
+            "mounting": stack_name,
+            "breakdown_K": {  # temperature rise of each step from inlet air to junction
+                "air_heating_upstream": _clean(e.air_local_rise[i, j]),
+                "sink_and_spreading": _clean(e.base_rise[i, j]),
+                "mounting_stack": _clean(d.power * e.r_stack[i, j]),
+                "junction_to_case": _clean(d.power * e.r_jc[i, j]),
+            },
+            "r_stack_K_per_W": _clean(e.r_stack[i, j]),
+            "r_jc_K_per_W": d.r_jc,
+        })
+    rec["devices"] = devices
+    rec["constraints"] = {k: _clean(v[i]) for k, v in result.constraints.items()}
+    rec["objectives"] = {name: _clean(result.objectives[i, k])
+                         for k, name in enumerate(problem.objectives)}
+    warns = result.warnings(i)
+    if not problem.air.ducted:
+        warns.append("unducted sink: lossless-bypass model, lower confidence (±30 %)")
+    rec["warnings"] = warns
+    if search_result is not None and search_index is not None:
+        diff = e.junction_C[i] - search_result.evaluation.junction_C[search_index]
+        rec["spreading_check"] = {
+            "search_model": search_result.evaluation.spreading,
+            "junction_difference_K": {d.name: _clean(diff[j])
+                                      for j, d in enumerate(problem.devices)},
+        }
+    rec["evaluate_command"] = evaluate_command(problem, result.params[i])
+    return rec
+
+
+@dataclass
+class Results:
+    """A study's trials and its Pareto front (exact series), as plain Python/numpy data."""
+
+    problem: Problem
+    trial_numbers: np.ndarray  #: complete trials, in order
+    search: BatchResult  #: every complete trial, search model
+    pareto_trials: np.ndarray  #: trial numbers on the front
+    exact: BatchResult | None  #: the reviewed candidates, exact series
+    exact_trials: np.ndarray  #: trial numbers of ``exact``'s rows
+    states: dict[str, int] = field(default_factory=dict)
+
+    @property
+    def directions(self) -> list[str]:
+        return [OBJECTIVES[o][1] for o in self.problem.objectives]
+
+    def pareto_records(self) -> list[dict[str, Any]]:
+        out = []
+        if self.exact is None:
+            return out
+        where = {int(t): k for k, t in enumerate(self.exact_trials)}
+        search_where = {int(t): k for k, t in enumerate(self.trial_numbers)}
+        for t in self.pareto_trials:
+            out.append(design_record(self.problem, self.exact, where[int(t)], int(t),
+                                     self.search, search_where[int(t)]))
+        return out
+
+
+def collect_results(problem: Problem, study: optuna.Study) -> Results:
+    """Re-evaluate the study's complete trials and decide the front on the exact series."""
+    trials = study.get_trials(deepcopy=False)
+    states: dict[str, int] = {}
+    for t in trials:
+        states[t.state.name] = states.get(t.state.name, 0) + 1
+    complete = [t for t in trials if t.state == TrialState.COMPLETE]
+    numbers = np.array([t.number for t in complete], dtype=int)
+    if not complete:
+        empty = np.array([], dtype=int)
+        return Results(problem, numbers, evaluate_params(problem, []), empty, None, empty, states)
+    search = evaluate_params(problem, [t.params for t in complete])
+    margin_gap = search.constraints["junction_margin_K"]
+    others_ok = np.ones(len(complete), dtype=bool)
+    for name, v in search.constraints.items():
+        if name not in ("junction_margin_K", "failed_fan_margin_K"):
+            others_ok &= v <= 0
+    review = others_ok & (margin_gap <= REVIEW_MARGIN_K)
+    if "failed_fan_margin_K" in search.constraints:
+        review &= search.constraints["failed_fan_margin_K"] <= REVIEW_MARGIN_K
+    idx = np.flatnonzero(review)
+    if idx.size == 0:
+        return Results(problem, numbers, search, np.array([], dtype=int), None,
+                       np.array([], dtype=int), states)
+    exact = evaluate_params(problem, [complete[i].params for i in idx], spreading="exact")
+    feasible = exact.feasible
+    front = np.zeros(idx.size, dtype=bool)
+    if feasible.any():
+        f = to_minimization(exact.objectives[feasible],
+                            [OBJECTIVES[o][1] for o in problem.objectives])
+        front[np.flatnonzero(feasible)[nondominated_mask(f)]] = True
+    return Results(problem, numbers, search, numbers[idx][front], exact, numbers[idx], states)

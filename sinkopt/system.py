@@ -1,0 +1,318 @@
+"""Evaluate a batch of candidate designs of a :class:`~sinkopt.problem.Problem`: sink geometry,
+fan operating point on the system curve, per-device junction temperatures, objectives and
+constraints. This is what the search calls once per batch of trials, vectorised.
+
+Parameter dictionaries use the search variables' names and units (``width_mm``, ``n_fins``,
+``fan``, ``fan_speed``, ``mount_<device>``); :func:`evaluate_params` fills fixed variables in.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any, Sequence
+
+import numpy as np
+
+from sinkopt.design import ModelOptions, SinkGeometry
+from sinkopt.fans import FanArray, solve_operating_point
+from sinkopt.model import Evaluation, evaluate, inlet_air
+from sinkopt.physics import heatsink as hs
+from sinkopt.physics.bypass import flow_fraction_lossless_bypass
+from sinkopt.problem import GEOMETRY_VARIABLES, OBJECTIVES, FanOption, Problem
+
+__all__ = ["BatchResult", "evaluate_params", "fan_choices", "fan_label", "full_params",
+           "PENALTY", "system_pressure_drop"]
+
+#: Finite stand-in for objectives and constraints of a design that cannot be evaluated (no fan
+#: operating point, a geometry that cannot exist); Optuna rejects NaN and such designs are marked
+#: infeasible anyway.
+PENALTY = 1e6
+
+
+def fan_label(option: FanOption, count: int) -> str:
+    """Categorical label of a fan choice: the file's key for one fan, ``"<key> x<N>"`` for N."""
+    return option.key if count == 1 else f"{option.key} x{count}"
+
+
+def fan_choices(problem: Problem) -> dict[str, tuple[FanOption, int]]:
+    """Every fan label the search may pick, with its fan option and count."""
+    return {fan_label(f, c): (f, c) for f in problem.air.fans for c in f.counts}
+
+
+def full_params(problem: Problem, params: dict[str, Any]) -> dict[str, Any]:
+    """The trial's parameters plus every fixed variable's value."""
+    out = {v.name: v.fixed for v in problem.variables if v.is_fixed}
+    out.update(params)
+    return out
+
+
+def _impedance_dp(problem: Problem, q, density):
+    air = problem.air
+    dp = np.zeros_like(q)
+    if air.extra_loss_coefficient and air.extra_loss_area_m2:
+        dp = dp + 0.5 * air.extra_loss_coefficient * density * (q / air.extra_loss_area_m2) ** 2
+    if air.extra_impedance is not None:
+        fq, fp = (np.asarray(a, dtype=float) for a in air.extra_impedance)
+        # Beyond the measured points the impedance is extended as a quadratic (turbulent
+        # grille/filter behaviour, common practice, no source).
+        inside = np.interp(q, fq, fp)
+        beyond = fp[-1] * (q / fq[-1]) ** 2
+        dp = dp + np.where(q <= fq[-1], inside, beyond) * density / air.extra_impedance_density
+    return dp
+
+
+def system_pressure_drop(problem: Problem, geometry: SinkGeometry, q, air, options: ModelOptions):
+    """System static pressure drop [Pa] at total flows q (n,): sink (ducted, or in a duct with a
+    lossless bypass) plus the study's extra losses. Returns (dp, flow through the fins)."""
+    g = geometry
+    q = np.asarray(q, dtype=float)
+
+    def sink_dp(q_fins):
+        return hs.sink_hydraulics(g.width, g.length, g.fin_height, g.fin_thickness, g.n_fins,
+                                  q_fins, air, options.hydraulic_diameter,
+                                  options.exit_loss).pressure_drop
+
+    if problem.air.ducted:
+        q_fins = q
+    else:
+        q_fins = q * flow_fraction_lossless_bypass(sink_dp, g, q, problem.air.duct_area_m2,
+                                                   air.density)
+    return sink_dp(q_fins) + _impedance_dp(problem, q, air.density), q_fins
+
+
+@dataclass
+class BatchResult:
+    """Results of n designs. ``objectives`` is (n, k) in the problem's objective order, in
+    natural units and directions; ``constraints`` maps names to (n,) values, ≤ 0 feasible."""
+
+    params: list[dict[str, Any]]
+    evaluation: Evaluation
+    fan_label: list[str]
+    flow_total: np.ndarray  #: [m^3/s] delivered by the fans (or given)
+    flow_fins: np.ndarray  #: [m^3/s] through the fin channels
+    system_pressure: np.ndarray  #: [Pa]
+    fan_power: np.ndarray  #: electrical [W]
+    noise: np.ndarray  #: [dB(A)]
+    speed_ratio: np.ndarray  #: [-]
+    in_stall: np.ndarray
+    no_airflow: np.ndarray
+    valid_geometry: np.ndarray
+    objectives: np.ndarray
+    constraints: dict[str, np.ndarray]
+    feasible: np.ndarray
+    failed_fan_margin: np.ndarray | None = None  #: worst margin with one fan stopped [K]
+    extras: dict[str, np.ndarray] = field(default_factory=dict)
+
+    def __len__(self) -> int:
+        return len(self.params)
+
+    def columns(self) -> dict[str, np.ndarray]:
+        """Per-design result columns with units in their names (trials.csv, reports)."""
+        e = self.evaluation
+        cols = {
+            "feasible": self.feasible,
+            "fan": np.array(self.fan_label, dtype=object),
+            "speed_ratio": self.speed_ratio,
+            "airflow_m3_s": self.flow_total,
+            "airflow_fins_m3_s": self.flow_fins,
+            "pressure_drop_Pa": self.system_pressure,
+            "sink_pressure_drop_Pa": e.pressure_drop,
+            "sink_resistance_K_per_W": e.r_sink,
+            "fan_power_W": self.fan_power,
+            "noise_dBA": self.noise,
+            "volume_cm3": e.volume * 1e6,
+            "mass_kg": e.mass,
+            "air_rise_K": e.air_rise,
+            "air_outlet_C": e.air_outlet_C,
+            "worst_margin_K": e.worst_margin,
+            "fin_gap_mm": e.gap * 1e3,
+            "fin_aspect": e.fin_aspect,
+            "channel_velocity_m_s": e.velocity,
+            "reynolds_dh": e.reynolds_dh,
+            "in_stall": self.in_stall,
+            "no_airflow": self.no_airflow,
+        }
+        for j, name in enumerate(e.device_names):
+            cols[f"tj_{name}_C"] = e.junction_C[:, j]
+            cols[f"margin_{name}_K"] = e.margin[:, j]
+        if self.failed_fan_margin is not None:
+            cols["failed_fan_margin_K"] = self.failed_fan_margin
+        return cols
+
+    def warnings(self, i: int) -> list[str]:
+        out = self.evaluation.warnings(i)
+        if self.in_stall[i]:
+            out.append("fan operates in its stall region (unstable, noisy)")
+        if self.no_airflow[i]:
+            out.append("no fan operating point inside the fan data: the fan cannot move air "
+                       "through this system")
+        if not self.valid_geometry[i]:
+            out.append("geometry cannot exist (fins do not fit on the base)")
+        return out
+
+
+def _geometry(problem: Problem, params: Sequence[dict[str, Any]]) -> SinkGeometry:
+    values = {}
+    for name, (_, factor) in GEOMETRY_VARIABLES.items():
+        values[name] = np.array([float(p[name]) for p in params]) * factor
+    return SinkGeometry.of(width=values["width_mm"], length=values["length_mm"],
+                           fin_height=values["fin_height_mm"],
+                           fin_thickness=values["fin_thickness_mm"],
+                           n_fins=np.round(values["n_fins"]),
+                           base_thickness=values["base_thickness_mm"])
+
+
+def _stack_choice(problem: Problem, params) -> np.ndarray:
+    out = np.zeros((len(params), len(problem.devices)), dtype=int)
+    for j, d in enumerate(problem.devices):
+        names = [s.name for s in d.stacks]
+        key = f"mount_{d.name}"
+        for i, p in enumerate(params):
+            if key in p:
+                out[i, j] = names.index(p[key])
+    return out
+
+
+def _solve_fans(problem, params, g, air, options, valid, failed=0):
+    n = len(params)
+    flow = np.full(n, np.nan)
+    dp = np.full(n, np.nan)
+    power = np.full(n, np.nan)
+    noise = np.full(n, np.nan)
+    speed = np.full(n, np.nan)
+    stall = np.zeros(n, dtype=bool)
+    labels = [str(p.get("fan", "")) for p in params]
+    choices = fan_choices(problem)
+    for label in sorted(set(labels)):
+        option, count = choices[label]
+        idx = np.flatnonzero((np.array(labels) == label) & valid)
+        if idx.size == 0 or failed >= count:
+            continue
+        sub = g.take(idx)
+        fraction = np.array([float(params[i].get("fan_speed", 0.0)) for i in idx])
+        s = option.speed_min + fraction * (option.speed_max - option.speed_min)
+        arr = FanArray(option.curve, count=count, arrangement=option.arrangement, failed=failed)
+        extra = {} if option.efficiency is None else {"efficiency": option.efficiency}
+        op = solve_operating_point(
+            arr, lambda q: system_pressure_drop(problem, sub, q, air, options)[0],
+            speed_ratio=s, air_density=np.full(idx.size, float(air.density)), n=idx.size,
+            **extra)
+        flow[idx], dp[idx] = op.flow_m3_s, op.pressure_Pa
+        power[idx], noise[idx], speed[idx] = op.electrical_power_W, op.noise_dBA, s
+        stall[idx] = op.in_stall
+    return flow, dp, power, noise, speed, stall, labels
+
+
+def evaluate_params(problem: Problem, params: Sequence[dict[str, Any]],
+                    spreading: str | None = None) -> BatchResult:
+    """Evaluate designs given as parameter dictionaries (fixed variables may be left out)."""
+    params = [full_params(problem, p) for p in params]
+    n = len(params)
+    options = problem.options
+    if spreading is not None:
+        options = ModelOptions(**{**options.__dict__, "spreading": spreading})
+    g = _geometry(problem, params)
+    valid = (g.n_fins >= 2) & (g.n_fins * g.fin_thickness < g.width)
+    # Designs that cannot exist are evaluated on a stand-in geometry (so no NaN leaks into the
+    # batch) and then marked infeasible with penalty values.
+    safe = SinkGeometry.of(**{k: np.where(valid, getattr(g, k), getattr(g, k)) for k in
+                              ("width", "length", "fin_height", "base_thickness")},
+                           fin_thickness=np.where(valid, g.fin_thickness, g.width / (4 * g.n_fins + 4)),
+                           n_fins=np.where(g.n_fins >= 2, g.n_fins, 2))
+    air = inlet_air(problem.conditions)
+    failed_margin = None
+    if problem.air.uses_fans:
+        flow, dp, power, noise, speed, stall, labels = _solve_fans(problem, params, safe, air,
+                                                                   options, valid)
+        flow_fins = np.full(n, np.nan)
+        ok = np.isfinite(flow)
+        if ok.any():
+            flow_fins[ok] = system_pressure_drop(problem, safe.take(ok), flow[ok], air, options)[1]
+    else:
+        if problem.air.fixed_flow_m3_s is not None:
+            flow = np.full(n, problem.air.fixed_flow_m3_s)
+        else:
+            # Approach velocity over the fin region's face W x H (the Culham & Muzychka
+            # convention, validation.md §D).
+            flow = problem.air.approach_velocity_m_s * safe.width * safe.fin_height
+        dp, flow_fins = system_pressure_drop(problem, safe, flow, air, options)
+        power = np.zeros(n)
+        noise = np.full(n, np.nan)
+        speed = np.full(n, np.nan)
+        stall = np.zeros(n, dtype=bool)
+        labels = [""] * n
+    no_air = ~np.isfinite(flow_fins) | ~(flow_fins > 0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        ev = evaluate(safe, np.where(no_air, np.nan, flow_fins), problem.devices,
+                      problem.conductivity, problem.density, problem.conditions, options,
+                      stack_choice=_stack_choice(problem, params))
+    if problem.air.uses_fans and problem.air.failed_fan_check:
+        f_flow, *_ = _solve_fans(problem, params, safe, air, options, valid & ~no_air, failed=1)
+        f_fins = np.full(n, np.nan)
+        okf = np.isfinite(f_flow)
+        if okf.any():
+            f_fins[okf] = system_pressure_drop(problem, safe.take(okf), f_flow[okf], air,
+                                               options)[1]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            failed_margin = evaluate(safe, f_fins, problem.devices, problem.conductivity,
+                                     problem.density, problem.conditions, options,
+                                     stack_choice=_stack_choice(problem, params)).worst_margin
+    bad = no_air | ~valid
+    result = BatchResult(params, ev, labels, flow, flow_fins, dp, power, noise, speed, stall,
+                         no_air, valid, np.empty((n, 0)), {}, np.zeros(n, dtype=bool),
+                         failed_margin)
+    result.constraints = _constraints(problem, result, g, bad)
+    feasible = ~bad
+    for v in result.constraints.values():
+        feasible &= v <= 0
+    result.feasible = feasible
+    result.objectives = _objectives(problem, result, bad)
+    return result
+
+
+def _objectives(problem: Problem, r: BatchResult, bad: np.ndarray) -> np.ndarray:
+    cols = r.columns()
+    out = np.empty((len(r), len(problem.objectives)))
+    for k, name in enumerate(problem.objectives):
+        column, direction = OBJECTIVES[name]
+        v = np.asarray(cols[column], dtype=float)
+        worst = PENALTY if direction == "minimize" else -PENALTY
+        out[:, k] = np.where(bad | ~np.isfinite(v), worst, v)
+    return out
+
+
+def _constraints(problem: Problem, r: BatchResult, g: SinkGeometry, bad) -> dict[str, np.ndarray]:
+    """Every constraint on every design (a missing one would count as feasible in Optuna 5)."""
+    e = r.evaluation
+    lim, proc = problem.limits, problem.process
+    c: dict[str, np.ndarray] = {}
+    c["junction_margin_K"] = lim.min_junction_margin_K - e.worst_margin
+    c["fin_gap_mm"] = (proc.min_gap_m - (g.width - g.n_fins * g.fin_thickness)
+                       / np.maximum(g.n_fins - 1, 1)) * 1e3
+    c["fin_thickness_mm"] = (proc.min_fin_thickness_m - g.fin_thickness) * 1e3
+    c["fin_aspect"] = e.fin_aspect - proc.max_fin_aspect
+    c["base_thickness_mm"] = (proc.min_base_thickness_m - g.base_thickness) * 1e3
+    overhang = np.zeros(len(r))
+    for d in problem.devices:
+        overhang = np.maximum(overhang, d.center_x + d.size_x / 2 - g.width)
+        overhang = np.maximum(overhang, d.center_y + d.size_y / 2 - g.length)
+    c["devices_on_base_mm"] = overhang * 1e3
+    c["airflow"] = np.where(r.no_airflow, 1.0, -1.0)
+    if not lim.allow_stall:
+        c["fan_stall"] = np.where(r.in_stall, 1.0, -1.0)
+    optional = [
+        ("air_rise_K", lim.max_air_rise_K, e.air_rise),
+        ("noise_dBA", lim.max_noise_dBA, r.noise),
+        ("width_mm", None if lim.max_width_m is None else lim.max_width_m * 1e3, g.width * 1e3),
+        ("length_mm", None if lim.max_length_m is None else lim.max_length_m * 1e3, g.length * 1e3),
+        ("height_mm", None if lim.max_height_m is None else lim.max_height_m * 1e3,
+         (g.fin_height + g.base_thickness) * 1e3),
+        ("mass_kg", lim.max_mass_kg, e.mass),
+        ("fan_power_W", lim.max_fan_power_W, r.fan_power),
+        ("pressure_drop_Pa", lim.max_pressure_drop_Pa, r.system_pressure),
+    ]
+    for name, limit, value in optional:
+        if limit is not None:
+            c[name] = value - limit
+    if r.failed_fan_margin is not None:
+        c["failed_fan_margin_K"] = lim.min_junction_margin_K - r.failed_fan_margin
+    return {k: np.where(np.isfinite(v), v, PENALTY) for k, v in c.items()}
