@@ -35,6 +35,8 @@ STUDY_JOURNAL = "study.journal"
 #: Trials asked before the batch is evaluated and told. TPE's constant liar keeps a batch spread
 #: out; batches make TPE ~3x cheaper per trial (optimizer.md §4).
 DEFAULT_BATCH = 8
+#: Batches between two looks for trials left running by a dead worker.
+STALE_CHECK_EVERY = 10
 
 
 def distributions(problem: Problem) -> dict[str, BaseDistribution]:
@@ -175,12 +177,17 @@ def _tell(study: optuna.Study, trials, result: BatchResult, problem: Problem) ->
 def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: float | None = None,
                batch_size: int = DEFAULT_BATCH,
                progress: Callable[[SearchProgress], None] | None = None,
-               stop_at_total: bool = True) -> int:
+               stop_at_total: bool = True, stale_after_s: float | None = 120.0) -> int:
     """Ask, evaluate and tell until the study holds ``n_trials`` finished trials (or, with
     ``stop_at_total=False``, until this call has added ``n_trials``), or ``timeout`` passes.
 
     Returns the number of trials this call finished. On KeyboardInterrupt the trials of the
     current batch are failed (so none stays RUNNING) and the interrupt is re-raised.
+
+    Every ``STALE_CHECK_EVERY`` batches, trials left RUNNING by a dead worker (or older than
+    ``stale_after_s``: a batch takes well under a second, so such a trial's worker is gone) are
+    failed and queued again (:func:`fail_stale_trials`), so a study shared by several workers
+    still reaches its trial count when one of them is killed.
     """
     space = distributions(problem)
     start = time.monotonic()
@@ -191,7 +198,11 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
                 study.get_trials(deepcopy=False, states=(TrialState.COMPLETE,))
                 if t.user_attrs.get("feasible")), default=-math.inf)
     worker = _worker_id()
+    batches = 0
     while True:
+        if batches % STALE_CHECK_EVERY == 0 and batches:
+            fail_stale_trials(study, stale_after_s)
+        batches += 1
         finished = len(study.get_trials(deepcopy=False, states=(TrialState.COMPLETE,)))
         remaining = (n_trials - finished) if stop_at_total else (n_trials - added)
         if remaining <= 0 or (timeout is not None and time.monotonic() - start > timeout):
