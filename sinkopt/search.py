@@ -129,7 +129,7 @@ def fail_stale_trials(study: optuna.Study, max_age_s: float | None = None) -> in
     """Fail RUNNING trials left by a dead worker and queue their parameters again.
 
     A trial is stale when its worker ran on this host and that process is gone, or (when
-    ``max_age_s`` is given) when it started longer ago than that. The journal storage has no
+    ``max_age_s`` is given) when it started longer ago than that, whatever its worker. The journal storage has no
     heartbeat, so without this a killed run's trials would stay RUNNING forever.
     """
     host = socket.gethostname()
@@ -141,7 +141,7 @@ def fail_stale_trials(study: optuna.Study, max_age_s: float | None = None) -> in
         dead = w_host == host and pid.isdigit() and not _pid_alive(int(pid))
         old = (max_age_s is not None and t.datetime_start is not None
                and now - t.datetime_start.timestamp() > max_age_s)
-        if dead or old or not worker:
+        if dead or old:
             try:
                 study.tell(t.number, state=TrialState.FAIL)
             except Exception:  # noqa: BLE001 - another worker may have finished it meanwhile

@@ -14,7 +14,7 @@ A unit that is not in these tables is an error: units are never guessed.
 >>> pressure_unit("in. W.G.").name, pressure_unit("in. W.G.").factor
 ('inH2O', 249.08891)
 >>> parse_column("Flow [CFM]")
-('flow', 'cfm')
+('flow', 'CFM')
 >>> parse_column("pressure_Pa")
 ('pressure', 'Pa')
 """
@@ -55,9 +55,12 @@ class Unit(NamedTuple):
     factor: float
 
 
-_CFM = Unit("cfm", FOOT_m**3 / 60.0)  # [m3/s] per ft3/min
-_IN_H2O = Unit("inH2O", INCH_m * G_N_m_s2 * RHO_WATER_CONVENTIONAL_kg_m3)  # [Pa]
-_MM_H2O = Unit("mmH2O", 1e-3 * G_N_m_s2 * RHO_WATER_CONVENTIONAL_kg_m3)  # [Pa]
+# The products below are written out as decimal literals: computing them in floating point
+# (e.g. 0.0254*9.80665*1000 = 249.08890999999997) would lose the last bit of an exact value.
+# tests/fans/test_units.py re-derives each one in exact rational arithmetic.
+_CFM = Unit("cfm", 4.719474432e-4)  # [m3/s] per ft3/min = 0.3048**3 / 60 exactly
+_IN_H2O = Unit("inH2O", 249.08891)  # [Pa] = 0.0254 m * 9.80665 m/s2 * 1000 kg/m3 exactly
+_MM_H2O = Unit("mmH2O", 9.80665)  # [Pa] = 0.001 m * 9.80665 m/s2 * 1000 kg/m3 exactly
 
 # Canonical units first; aliases map (after normalise_unit) onto them.
 FLOW_UNITS: dict[str, Unit] = {
