@@ -81,7 +81,17 @@ def storage_for(out_dir, url: str | None = None):
     """Optuna storage: the journal file in the results folder, or any database URL."""
     if url:
         if url.startswith(("postgresql", "mysql", "sqlite")):
-            return optuna.storages.RDBStorage(url, heartbeat_interval=10, grace_period=30)
+            # pool_pre_ping: a worker (or a waiting parent) whose pooled connection was dropped
+            # by the server while idle reconnects instead of failing its next query.
+            kwargs = ({} if url.startswith("sqlite")
+                      else {"engine_kwargs": {"pool_pre_ping": True}})
+            try:
+                return optuna.storages.RDBStorage(url, heartbeat_interval=10, grace_period=30,
+                                                  **kwargs)
+            except Exception as exc:  # noqa: BLE001 - unreachable/invalid database, no driver
+                from sinkopt.workers import storage_error  # its message has no password
+
+                raise storage_error(url, exc) from None
         return url
     from optuna.storages.journal import JournalFileBackend, JournalStorage
     return JournalStorage(JournalFileBackend(str(os.path.join(out_dir, STUDY_JOURNAL))))
@@ -125,11 +135,14 @@ def _pid_alive(pid: int) -> bool:
     return True
 
 
-def fail_stale_trials(study: optuna.Study, max_age_s: float | None = None) -> int:
+def fail_stale_trials(study: optuna.Study, max_age_s: float | None = None,
+                      exclusive: bool = False, max_retries: int = 2) -> int:
     """Fail RUNNING trials left by a dead worker and queue their parameters again.
 
     A trial is stale when its worker ran on this host and that process is gone, or (when
-    ``max_age_s`` is given) when it started longer ago than that, whatever its worker. The journal storage has no
+    ``max_age_s`` is given) when it started longer ago than that, whatever its worker. With
+    ``exclusive=True`` the caller is the only worker of the study (a plain ``sinkopt run``), so
+    every RUNNING trial is stale. The journal storage has no
     heartbeat, so without this a killed run's trials would stay RUNNING forever.
     """
     host = socket.gethostname()
@@ -141,13 +154,18 @@ def fail_stale_trials(study: optuna.Study, max_age_s: float | None = None) -> in
         dead = w_host == host and pid.isdigit() and not _pid_alive(int(pid))
         old = (max_age_s is not None and t.datetime_start is not None
                and now - t.datetime_start.timestamp() > max_age_s)
-        if dead or old:
+        if dead or old or exclusive:
             try:
                 study.tell(t.number, state=TrialState.FAIL)
             except Exception:  # noqa: BLE001 - another worker may have finished it meanwhile
                 continue
-            if t.params:
-                study.enqueue_trial(t.params, user_attrs={"retry_of": t.number})
+            # Only the process whose FAIL went through gets here (the storage refuses to
+            # finish a trial twice), so each stale trial is queued again at most once; a trial
+            # that already went stale ``max_retries`` times (it may be what kills workers) is not.
+            retries = int(t.user_attrs.get("retries", 0))
+            if t.params and retries < max_retries:
+                study.enqueue_trial(t.params, user_attrs={"retry_of": t.number,
+                                                          "retries": retries + 1})
             n += 1
     return n
 

@@ -36,6 +36,9 @@ def register(sub) -> None:
                      help="Optuna storage URL, e.g. postgresql://user@host/db "
                           "(default: a journal file in the results folder)")
     run.add_argument("--batch", type=int, default=None, help="trials per vectorised batch")
+    run.add_argument("--workers", type=int, default=1,
+                     help="local worker processes sharing the study (default 1: search in this "
+                          "process); see also 'sinkopt worker'")
     run.add_argument("--no-report", action="store_true", help="skip report.html")
     run.add_argument("--no-progress", action="store_true", help="no progress bar")
     run.set_defaults(func=cmd_run)
@@ -190,7 +193,7 @@ def cmd_run(args) -> int:
     optuna.logging.set_verbosity(optuna.logging.WARNING)
     storage = storage_for(out, args.storage)
     study = open_study(problem, storage, seed, sampler)
-    stale = fail_stale_trials(study)
+    stale = fail_stale_trials(study, exclusive=args.storage is None)
     if stale:
         print(f"sinkopt: {stale} trial(s) left running by a stopped run were failed and queued "
               "again", file=sys.stderr)
@@ -198,8 +201,15 @@ def cmd_run(args) -> int:
     start = time.monotonic()
     interrupted = False
     try:
-        run_search(problem, study, n_trials, timeout=args.timeout,
-                   batch_size=args.batch or DEFAULT_BATCH, progress=progress)
+        if args.workers > 1:
+            from sinkopt.workers import run_local_workers
+            run_local_workers(problem, study, args.study, n_workers=args.workers,
+                              n_trials=n_trials, seed=seed, sampler=sampler, out=out,
+                              storage_url=args.storage, batch=args.batch, timeout=args.timeout,
+                              progress=progress)
+        else:
+            run_search(problem, study, n_trials, timeout=args.timeout,
+                       batch_size=args.batch or DEFAULT_BATCH, progress=progress)
     except KeyboardInterrupt:
         interrupted = True
     finally:

@@ -1,0 +1,250 @@
+"""``sinkopt check STUDY.toml`` and ``sinkopt init [DIR]``: set up and validate a study file.
+
+``check`` reads the study (docs/study-file.md), reports every problem at once (exit 2) or prints
+the resolved problem in SI. ``init`` writes a starter study and an invented example fan curve
+that ``check`` accepts.
+"""
+from __future__ import annotations
+
+import argparse
+import sys
+import warnings
+from pathlib import Path
+
+from sinkopt.errors import InputError
+
+__all__ = ["register", "cmd_check", "cmd_init", "describe_problem", "STARTER_STUDY",
+           "EXAMPLE_FAN"]
+
+
+def register(subparsers) -> None:
+    p = subparsers.add_parser(
+        "check", help="validate a study file and print the resolved problem",
+        description="Validate a study file, report every problem at once (exit 2), or print the "
+                    "resolved problem in SI units (exit 0).",
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+        epilog="example:\n  sinkopt check studies/demo_inverter.toml")
+    p.add_argument("study", metavar="STUDY.toml", help="the study file")
+    p.set_defaults(func=cmd_check)
+    p = subparsers.add_parser(
+        "init", help="write a starter study.toml and an example fan curve",
+        description="Write study.toml and fan_example.csv (an invented fan) into DIR; existing "
+                    "files are never overwritten.",
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+        epilog="example:\n  sinkopt init my_study && sinkopt check my_study/study.toml")
+    p.add_argument("dir", metavar="DIR", nargs="?", default=".",
+                   help="folder to write into, created if missing (default: .)")
+    p.set_defaults(func=cmd_init)
+
+
+# ---- check -------------------------------------------------------------------------------------
+def _g(x: float) -> str:
+    return f"{x:.4g}"
+
+
+def describe_problem(problem) -> list[str]:
+    """Lines describing a resolved :class:`~sinkopt.problem.Problem` in SI units."""
+    from sinkopt.model import inlet_air
+    from sinkopt.problem import GEOMETRY_VARIABLES, OBJECTIVES
+    from sinkopt.study_file import fan_choices
+
+    c = problem.conditions
+    air = inlet_air(c)
+    rho = float(air.density)
+    out = [f"study {problem.name!r}: valid ({problem.trials} trials, sampler {problem.sampler}, "
+           f"seed {problem.seed if problem.seed is not None else 'drawn at run time'})",
+           "",
+           f"ambient: {c.ambient_C:g} °C ({c.ambient_C + 273.15:g} K) worst-case inlet, altitude "
+           f"{c.altitude_m:g} m: pressure {_g(float(air.pressure))} Pa, air density "
+           f"{rho:.4g} kg/m³",
+           "",
+           f"devices ({len(problem.devices)}):"]
+    for d in problem.devices:
+        out.append(f"  {d.name}: {d.power:g} W, tj_max {d.tj_max:g} °C, R_jc {d.r_jc:g} K/W, "
+                   f"centre ({_g(d.center_x)}, {_g(d.center_y)}) m, footprint "
+                   f"{_g(d.size_x)} x {_g(d.size_y)} m")
+        for s in d.stacks:
+            parts = ", ".join(f"{n} {r:.3g}" for n, r in s.layer_resistances())
+            out.append(f"    mounting {s.name!r}: R_cs {s.resistance():.4g} K/W ({parts}; "
+                       f"contact {_g(s.contact_area)} m²)")
+    p = problem.process
+    out += ["",
+            f"sink: {problem.material_name}, k {problem.conductivity:g} W/(m·K), density "
+            f"{problem.density:g} kg/m³",
+            f"process {p.name}: fin thickness >= {_g(p.min_fin_thickness_m)} m, gap >= "
+            f"{_g(p.min_gap_m)} m, fin height/gap <= {p.max_fin_aspect:g}, base >= "
+            f"{_g(p.min_base_thickness_m)} m",
+            "",
+            "variables:"]
+    for v in problem.variables:
+        factor = GEOMETRY_VARIABLES.get(v.name, (None, None))[1]
+        si = (lambda x: f"{x * factor:.4g} m") if factor not in (None, 1.0) else None
+        if v.kind == "categorical":
+            body = (f"fixed {v.fixed!r}" if v.is_fixed
+                    else f"one of {', '.join(repr(c) for c in v.choices)}")
+        elif v.is_fixed:
+            body = f"fixed {v.fixed:g}" + (f" ({si(v.fixed)})" if si else "")
+        else:
+            body = f"{v.low:g} .. {v.high:g}" + (f" ({si(v.low)} .. {si(v.high)})" if si else "")
+        out.append(f"  {v.name:<18} {v.kind:<12} {body}")
+    a = problem.air
+    out += ["", "air:"]
+    if a.uses_fans:
+        for f in a.fans:
+            cv = f.curve
+            speed = (f"{f.speed_min:g}" if f.speed_min == f.speed_max
+                     else f"{f.speed_min:g}..{f.speed_max:g}")
+            out.append(f"  fan {f.key!r} ({f.curve.source}): free delivery {_g(cv.q_free_m3_s)} m³/s "
+                       f"({cv.q_free_m3_s * 3600:.4g} m³/h), max pressure {cv.p_max_Pa:.4g} Pa "
+                       f"at rated speed and {cv.air_density_kg_m3:g} kg/m³ "
+                       f"({cv.p_max_Pa * rho / cv.air_density_kg_m3:.4g} Pa at the site); "
+                       f"counts {', '.join(map(str, f.counts))} {f.arrangement}; speed {speed} "
+                       "of rated")
+        out.append(f"  fan labels: {', '.join(fan_choices(a))}")
+    elif a.fixed_flow_m3_s is not None:
+        out.append(f"  known flow {_g(a.fixed_flow_m3_s)} m³/s ({a.fixed_flow_m3_s * 3600:.4g} m³/h)")
+    else:
+        out.append(f"  known approach velocity {a.approach_velocity_m_s:g} m/s")
+    out.append("  ducted" if a.ducted else
+               f"  not ducted: bypass in a duct of {_g(a.duct_area_m2)} m²")
+    if a.extra_loss_area_m2 is not None:
+        out.append(f"  extra loss K = {a.extra_loss_coefficient:g} at {_g(a.extra_loss_area_m2)} m²")
+    if a.extra_impedance is not None:
+        q, dp = a.extra_impedance
+        out.append(f"  extra impedance curve: {len(q)} points up to {_g(q[-1])} m³/s, "
+                   f"{dp[-1]:.4g} Pa at {a.extra_impedance_density:g} kg/m³")
+    if a.failed_fan_check:
+        out.append("  failed-fan check: also evaluated with one fan of the array stopped")
+    out += ["", "objectives:"]
+    out += [f"  {OBJECTIVES[o][1]} {o} ({OBJECTIVES[o][0]})" for o in problem.objectives]
+    lim = problem.limits
+    out += ["", "constraints:", f"  junction margin >= {lim.min_junction_margin_K:g} K"]
+    for name, unit in (("max_air_rise_K", "K"), ("max_noise_dBA", "dB(A)"), ("max_width_m", "m"),
+                       ("max_length_m", "m"), ("max_height_m", "m"), ("max_mass_kg", "kg"),
+                       ("max_fan_power_W", "W"), ("max_pressure_drop_Pa", "Pa")):
+        v = getattr(lim, name)
+        if v is not None:
+            out.append(f"  {name.removeprefix('max_').rsplit('_', 1)[0].replace('_', ' ')} "
+                       f"<= {v:g} {unit}")
+    out.append(f"  fan stall {'allowed' if lim.allow_stall else 'not allowed'}")
+    o = problem.options
+    out += ["", f"model: heat_transfer {o.heat_transfer}, hydraulic_diameter "
+                f"{o.hydraulic_diameter}, exit_loss {o.exit_loss}, fin_tip {o.fin_tip}, "
+                + ", ".join(f"{k} {getattr(o, k)}" for k in ("spreading", "coarse_terms", "air_heating",
+                                                   "series_terms") if hasattr(o, k)),
+            f"inputs: {', '.join(str(p) for p in problem.inputs)}"]
+    return out
+
+
+def cmd_check(args) -> int:
+    from sinkopt.study_file import load_study
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        problem = load_study(args.study)
+    print("\n".join(describe_problem(problem)))
+    for w in caught:
+        print(f"sinkopt: warning: {w.message}", file=sys.stderr)
+    return 0
+
+
+# ---- init --------------------------------------------------------------------------------------
+STARTER_STUDY = """\
+# sinkopt study file: docs/study-file.md lists every key. Keys carry their unit in the name.
+# Starter study written by `sinkopt init`: an invented example; replace it with your data.
+
+[study]
+name = "starter"
+trials = 300
+seed = 1
+sampler = "tpe"
+
+[ambient]
+temperature_C = 40   # worst-case inlet air
+altitude_m = 0
+
+[[device]]
+name = "Q1"
+power_W = 25
+tj_max_C = 150
+r_jc_K_per_W = 0.5
+center_x_mm = 25     # across the flow, from the sink's left edge
+center_y_mm = 20     # along the flow, from the inlet edge
+footprint_x_mm = 16
+footprint_y_mm = 21
+
+  [[device.mounting]]
+  name = "pad"
+  interface = "insulating-pad"   # from catalogs/interfaces.csv
+  contact_area_mm2 = 220
+
+[sink]
+material = "al6063-t5"   # from catalogs/materials.csv
+process = "extruded"
+width_mm = [50, 120]     # [low, high] is searched, a number is fixed
+length_mm = [40, 120]
+fin_height_mm = [15, 45]
+fin_thickness_mm = [1.0, 2.5]
+n_fins = [6, 25]
+base_thickness_mm = [3, 8]
+
+[air]
+ducted = true
+
+  [[air.fan]]
+  file = "fan_example.csv"   # a path or glob, relative to this file's folder
+  count = [1, 2]
+  arrangement = "parallel"
+  speed = [0.6, 1.0]         # fraction of the rated speed
+
+[objectives]
+use = ["sink_volume", "fan_power", "junction_margin"]
+
+[constraints]
+min_junction_margin_K = 10   # common practice: 10-25 K below tj_max
+
+[model]
+heat_transfer = "teertstra"
+"""
+
+EXAMPLE_FAN = """\
+# sinkopt-fan-curve: 1
+# name: Example 80 mm fan (invented for the starter study, not a real product)
+# note: invented numbers shaped like a typical axial fan curve, with a small stall dip
+# speed_rpm: 4000
+# voltage_V: 12
+# power_W: 4.8
+# noise_dBA: 42
+# size_mm: 80
+# air_density_kg_m3: 1.2
+flow_m3_h,pressure_Pa
+0,110
+20,96
+35,80
+45,78
+55,79
+70,66
+90,40
+105,18
+118,0
+"""
+
+
+def cmd_init(args) -> int:
+    folder = Path(args.dir)
+    targets = {folder / "study.toml": STARTER_STUDY, folder / "fan_example.csv": EXAMPLE_FAN}
+    existing = [str(p) for p in targets if p.exists()]
+    if existing:
+        raise InputError(f"refusing to overwrite {', '.join(existing)}; choose another folder or "
+                         "move the files away", source="init")
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+        for path, text in targets.items():
+            with path.open("x", encoding="utf-8") as fh:
+                fh.write(text)
+    except OSError as exc:
+        raise InputError(f"cannot write the starter files: {exc}", source="init") from None
+    for path in targets:
+        print(f"wrote {path}")
+    print(f"next: sinkopt check {folder / 'study.toml'}")
+    return 0
