@@ -8,6 +8,7 @@ Parameter dictionaries use the search variables' names and units (``width_mm``, 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cached_property
 from typing import Any, Sequence
 
 import numpy as np
@@ -19,7 +20,7 @@ from sinkopt.physics import heatsink as hs
 from sinkopt.physics.bypass import flow_fraction_lossless_bypass
 from sinkopt.problem import GEOMETRY_VARIABLES, OBJECTIVES, FanOption, Problem
 
-__all__ = ["BatchResult", "evaluate_params", "fan_choices", "fan_label", "full_params",
+__all__ = ["BatchResult", "evaluate_params", "fan_choices", "fan_label", "full_params", "to_columns",
            "PENALTY", "system_pressure_drop"]
 
 #: Finite stand-in for objectives and constraints of a design that cannot be evaluated (no fan
@@ -43,6 +44,27 @@ def full_params(problem: Problem, params: dict[str, Any]) -> dict[str, Any]:
     out = {v.name: v.fixed for v in problem.variables if v.is_fixed}
     out.update(params)
     return out
+
+
+def to_columns(problem: Problem, params) -> dict[str, np.ndarray]:
+    """Parameters as one array per variable, fixed variables filled in.
+
+    ``params`` is a sequence of dicts (one per design) or a dict of equal-length sequences.
+    """
+    if isinstance(params, dict):
+        cols = {k: np.asarray(v) for k, v in params.items()}
+        n = len(next(iter(cols.values()))) if cols else 0
+    else:
+        params = list(params)
+        n = len(params)
+        names = {k for p in params for k in p}
+        cols = {k: np.array([p[k] for p in params]) for k in names}
+    for v in problem.variables:
+        if v.is_fixed and v.name not in cols:
+            cols[v.name] = np.full(n, v.fixed, dtype=object if isinstance(v.fixed, str) else None)
+        elif n == 0 and v.name not in cols:
+            cols[v.name] = np.array([], dtype=object if v.kind == "categorical" else float)
+    return cols
 
 
 def _impedance_dp(problem: Problem, q, density):
@@ -84,7 +106,7 @@ class BatchResult:
     """Results of n designs. ``objectives`` is (n, k) in the problem's objective order, in
     natural units and directions; ``constraints`` maps names to (n,) values, ≤ 0 feasible."""
 
-    params: list[dict[str, Any]]
+    columns_in: dict[str, np.ndarray]  #: the parameters, one array per variable
     evaluation: Evaluation
     fan_label: list[str]
     flow_total: np.ndarray  #: [m^3/s] delivered by the fans (or given)
@@ -103,7 +125,14 @@ class BatchResult:
     extras: dict[str, np.ndarray] = field(default_factory=dict)
 
     def __len__(self) -> int:
-        return len(self.params)
+        return len(self.flow_total)
+
+    @cached_property
+    def params(self) -> list[dict[str, Any]]:
+        """The parameters as one dict per design (plain Python values)."""
+        names = list(self.columns_in)
+        rows = zip(*(self.columns_in[k].tolist() for k in names))
+        return [dict(zip(names, r)) for r in rows]
 
     def columns(self) -> dict[str, np.ndarray]:
         """Per-design result columns with units in their names (trials.csv, reports)."""
@@ -150,10 +179,10 @@ class BatchResult:
         return out
 
 
-def _geometry(problem: Problem, params: Sequence[dict[str, Any]]) -> SinkGeometry:
+def _geometry(problem: Problem, cols: dict[str, np.ndarray]) -> SinkGeometry:
     values = {}
     for name, (_, factor) in GEOMETRY_VARIABLES.items():
-        values[name] = np.array([float(p[name]) for p in params]) * factor
+        values[name] = cols[name].astype(float) * factor
     return SinkGeometry.of(width=values["width_mm"], length=values["length_mm"],
                            fin_height=values["fin_height_mm"],
                            fin_thickness=values["fin_thickness_mm"],
@@ -161,34 +190,37 @@ def _geometry(problem: Problem, params: Sequence[dict[str, Any]]) -> SinkGeometr
                            base_thickness=values["base_thickness_mm"])
 
 
-def _stack_choice(problem: Problem, params) -> np.ndarray:
-    out = np.zeros((len(params), len(problem.devices)), dtype=int)
+def _stack_choice(problem: Problem, cols, n: int) -> np.ndarray:
+    out = np.zeros((n, len(problem.devices)), dtype=int)
     for j, d in enumerate(problem.devices):
-        names = [s.name for s in d.stacks]
         key = f"mount_{d.name}"
-        for i, p in enumerate(params):
-            if key in p:
-                out[i, j] = names.index(p[key])
+        if key in cols:
+            names = np.array([s.name for s in d.stacks], dtype=object)
+            chosen = cols[key].astype(object)
+            for k, name in enumerate(names):
+                out[chosen == name, j] = k
     return out
 
 
-def _solve_fans(problem, params, g, air, options, valid, failed=0):
-    n = len(params)
+def _solve_fans(problem, cols, g, air, options, valid, failed=0):
+    n = len(g)
     flow = np.full(n, np.nan)
     dp = np.full(n, np.nan)
     power = np.full(n, np.nan)
     noise = np.full(n, np.nan)
     speed = np.full(n, np.nan)
     stall = np.zeros(n, dtype=bool)
-    labels = [str(p.get("fan", "")) for p in params]
+    labels = cols["fan"].astype(str)
     choices = fan_choices(problem)
-    for label in sorted(set(labels)):
-        option, count = choices[label]
-        idx = np.flatnonzero((np.array(labels) == label) & valid)
+    speed_fraction = (cols["fan_speed"].astype(float) if "fan_speed" in cols
+                      else np.zeros(n))
+    for label in np.unique(labels):
+        option, count = choices[str(label)]
+        idx = np.flatnonzero((labels == label) & valid)
         if idx.size == 0 or failed >= count:
             continue
         sub = g.take(idx)
-        fraction = np.array([float(params[i].get("fan_speed", 0.0)) for i in idx])
+        fraction = speed_fraction[idx]
         s = option.speed_min + fraction * (option.speed_max - option.speed_min)
         arr = FanArray(option.curve, count=count, arrangement=option.arrangement, failed=failed)
         extra = {} if option.efficiency is None else {"efficiency": option.efficiency}
@@ -199,18 +231,19 @@ def _solve_fans(problem, params, g, air, options, valid, failed=0):
         flow[idx], dp[idx] = op.flow_m3_s, op.pressure_Pa
         power[idx], noise[idx], speed[idx] = op.electrical_power_W, op.noise_dBA, s
         stall[idx] = op.in_stall
-    return flow, dp, power, noise, speed, stall, labels
+    return flow, dp, power, noise, speed, stall, labels.tolist()
 
 
-def evaluate_params(problem: Problem, params: Sequence[dict[str, Any]],
-                    spreading: str | None = None) -> BatchResult:
-    """Evaluate designs given as parameter dictionaries (fixed variables may be left out)."""
-    params = [full_params(problem, p) for p in params]
-    n = len(params)
+def evaluate_params(problem: Problem, params, spreading: str | None = None) -> BatchResult:
+    """Evaluate designs given as parameter dictionaries, or as a dict of columns (one array per
+    variable, the fast path for large batches); fixed variables may be left out."""
+    cols = to_columns(problem, params)
+    n = len(next(iter(cols.values())))
     options = problem.options
     if spreading is not None:
         options = ModelOptions(**{**options.__dict__, "spreading": spreading})
-    g = _geometry(problem, params)
+    g = _geometry(problem, cols)
+    mounts = _stack_choice(problem, cols, n)
     valid = (g.n_fins >= 2) & (g.n_fins * g.fin_thickness < g.width)
     # Designs that cannot exist are evaluated on a stand-in geometry (so no NaN leaks into the
     # batch) and then marked infeasible with penalty values.
@@ -221,7 +254,7 @@ def evaluate_params(problem: Problem, params: Sequence[dict[str, Any]],
     air = inlet_air(problem.conditions)
     failed_margin = None
     if problem.air.uses_fans:
-        flow, dp, power, noise, speed, stall, labels = _solve_fans(problem, params, safe, air,
+        flow, dp, power, noise, speed, stall, labels = _solve_fans(problem, cols, safe, air,
                                                                    options, valid)
         flow_fins = np.full(n, np.nan)
         ok = np.isfinite(flow)
@@ -244,9 +277,9 @@ def evaluate_params(problem: Problem, params: Sequence[dict[str, Any]],
     with np.errstate(invalid="ignore", divide="ignore"):
         ev = evaluate(safe, np.where(no_air, np.nan, flow_fins), problem.devices,
                       problem.conductivity, problem.density, problem.conditions, options,
-                      stack_choice=_stack_choice(problem, params))
+                      stack_choice=mounts)
     if problem.air.uses_fans and problem.air.failed_fan_check:
-        f_flow, *_ = _solve_fans(problem, params, safe, air, options, valid & ~no_air, failed=1)
+        f_flow, *_ = _solve_fans(problem, cols, safe, air, options, valid & ~no_air, failed=1)
         f_fins = np.full(n, np.nan)
         okf = np.isfinite(f_flow)
         if okf.any():
@@ -255,9 +288,9 @@ def evaluate_params(problem: Problem, params: Sequence[dict[str, Any]],
         with np.errstate(invalid="ignore", divide="ignore"):
             failed_margin = evaluate(safe, f_fins, problem.devices, problem.conductivity,
                                      problem.density, problem.conditions, options,
-                                     stack_choice=_stack_choice(problem, params)).worst_margin
+                                     stack_choice=mounts).worst_margin
     bad = no_air | ~valid
-    result = BatchResult(params, ev, labels, flow, flow_fins, dp, power, noise, speed, stall,
+    result = BatchResult(cols, ev, labels, flow, flow_fins, dp, power, noise, speed, stall,
                          no_air, valid, np.empty((n, 0)), {}, np.zeros(n, dtype=bool),
                          failed_margin)
     result.constraints = _constraints(problem, result, g, bad)
