@@ -12,6 +12,8 @@ from typing import Any
 from sinkopt.design import Conditions, Device, ModelOptions
 
 __all__ = [
+    "SAMPLERS",
+    "DEFAULT_SAMPLER",
     "GEOMETRY_VARIABLES",
     "OBJECTIVES",
     "Variable",
@@ -31,6 +33,11 @@ GEOMETRY_VARIABLES = {
     "n_fins": ("-", 1.0),
     "base_thickness_mm": ("mm", 1e-3),
 }
+
+#: Search schemes. ``tpe-refine`` (default): multivariate TPE plus vectorised refinement of the
+#: Pareto front (sinkopt.explore); the others are Optuna's samplers alone.
+SAMPLERS = ("tpe-refine", "tpe", "nsga2", "random", "gp")
+DEFAULT_SAMPLER = "tpe-refine"
 
 #: Objectives: name -> (result column, direction). Directions are Optuna's words.
 OBJECTIVES = {
@@ -141,7 +148,7 @@ class Problem:
     options: ModelOptions = field(default_factory=ModelOptions)
     trials: int = 300
     seed: int | None = None
-    sampler: str = "tpe"
+    sampler: str = DEFAULT_SAMPLER
     source: Path | None = None  #: the study file
     inputs: tuple[Path, ...] = ()  #: every file read (study, fan curves, impedance curves)
 

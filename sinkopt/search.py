@@ -22,7 +22,8 @@ from optuna.distributions import (BaseDistribution, CategoricalDistribution, Flo
                                   IntDistribution)
 from optuna.trial import TrialState
 
-from sinkopt.problem import OBJECTIVES, Problem
+from sinkopt.pareto import to_minimization
+from sinkopt.problem import OBJECTIVES, SAMPLERS, Problem
 from sinkopt.system import BatchResult, evaluate_params
 
 __all__ = ["SAMPLERS", "distributions", "make_sampler", "open_study", "run_search",
@@ -30,7 +31,10 @@ __all__ = ["SAMPLERS", "distributions", "make_sampler", "open_study", "run_searc
 
 log = logging.getLogger(__name__)
 
-SAMPLERS = ("tpe", "nsga2", "random", "gp")
+#: Share of each batch filled from the refined archive under ``tpe-refine``; TPE proposes the rest.
+REFINE_SHARE = 0.75
+#: Refinement may take at most this share of the search's wall time (after its first rounds).
+REFINE_TIME_SHARE = 0.5
 STUDY_JOURNAL = "study.journal"
 #: Trials asked before the batch is evaluated and told. TPE's constant liar keeps a batch spread
 #: out; batches make TPE ~3x cheaper per trial (optimizer.md §4).
@@ -57,8 +61,9 @@ def distributions(problem: Problem) -> dict[str, BaseDistribution]:
 
 
 def make_sampler(name: str, seed: int | None, n_objectives: int) -> optuna.samplers.BaseSampler:
-    """Build the named sampler. ``tpe`` (default): multivariate TPE with the constant liar."""
-    if name == "tpe":
+    """Build the named Optuna sampler. ``tpe`` and ``tpe-refine``: multivariate TPE with the
+    constant liar (``tpe-refine`` adds :mod:`sinkopt.explore` proposals in :func:`run_search`)."""
+    if name in ("tpe", "tpe-refine"):
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", optuna.exceptions.ExperimentalWarning)
             return optuna.samplers.TPESampler(seed=seed, multivariate=True, constant_liar=True,
@@ -86,8 +91,9 @@ def storage_for(out_dir, url: str | None = None):
             kwargs = ({} if url.startswith("sqlite")
                       else {"engine_kwargs": {"pool_pre_ping": True}})
             try:
-                return optuna.storages.RDBStorage(url, heartbeat_interval=10, grace_period=30,
-                                                  **kwargs)
+                # No heartbeat: it runs only inside study.optimize, never with ask/tell; sinkopt
+                # fails stale trials itself (fail_stale_trials).
+                return optuna.storages.RDBStorage(url, **kwargs)
             except Exception as exc:  # noqa: BLE001 - unreachable/invalid database, no driver
                 from sinkopt.workers import storage_error  # its message has no password
 
@@ -195,7 +201,8 @@ def _tell(study: optuna.Study, trials, result: BatchResult, problem: Problem) ->
 def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: float | None = None,
                batch_size: int = DEFAULT_BATCH,
                progress: Callable[[SearchProgress], None] | None = None,
-               stop_at_total: bool = True, stale_after_s: float | None = 120.0) -> int:
+               stop_at_total: bool = True, stale_after_s: float | None = 120.0,
+               scheme: str | None = None, seed: int | None = None) -> int:
     """Ask, evaluate and tell until the study holds ``n_trials`` finished trials (or, with
     ``stop_at_total=False``, until this call has added ``n_trials``), or ``timeout`` passes.
 
@@ -209,6 +216,23 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
     """
     space = distributions(problem)
     start = time.monotonic()
+    scheme = scheme or problem.sampler
+    refiner = None
+    refine_time = 0.0
+    if scheme == "tpe-refine" and space:
+        from sinkopt.explore import FrontRefiner
+
+        t0 = time.monotonic()
+        done_trials = study.get_trials(deepcopy=False, states=(TrialState.COMPLETE,))
+        refiner = FrontRefiner(problem, None if seed is None else seed + len(study.trials))
+        refiner.add_known([t.params for t in done_trials])
+        directions = [OBJECTIVES[o][1] for o in problem.objectives]
+        refiner.mark_told(to_minimization(np.array([t.values for t in done_trials
+                                                    if t.user_attrs.get("feasible")]).reshape(
+            -1, len(directions)), directions))
+        refiner.sweep()
+        refiner.refine(rounds=3)
+        refine_time += time.monotonic() - t0
     added = 0
     feasible = sum(1 for t in study.get_trials(deepcopy=False, states=(TrialState.COMPLETE,))
                    if t.user_attrs.get("feasible"))
@@ -226,6 +250,14 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
         if remaining <= 0 or (timeout is not None and time.monotonic() - start > timeout):
             break
         batch = min(batch_size, remaining)
+        if refiner is not None:
+            elapsed = time.monotonic() - start
+            if refine_time < REFINE_TIME_SHARE * elapsed:
+                t0 = time.monotonic()
+                refiner.refine()
+                refine_time += time.monotonic() - t0
+            for params in refiner.propose(int(round(REFINE_SHARE * batch))):
+                study.enqueue_trial(params, user_attrs={"proposed_by": "refine"})
         trials = []
         try:
             for _ in range(batch):
@@ -234,6 +266,9 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
                 trials.append(t)
             result = evaluate_params(problem, [t.params for t in trials])
             _tell(study, trials, result, problem)
+            if refiner is not None:
+                refiner.mark_told(to_minimization(result.objectives[result.feasible],
+                                                  refiner.directions))
         except BaseException:
             for t in trials:
                 try:

@@ -31,8 +31,8 @@ from pathlib import Path
 from sinkopt import catalogs
 from sinkopt.design import Conditions, Device, ModelOptions, MountingStack, SlabLayer, ViaLayer
 from sinkopt.errors import InputError
-from sinkopt.problem import (GEOMETRY_VARIABLES, OBJECTIVES, AirSupply, FanOption, Limits,
-                             Problem, ProcessLimits, Variable)
+from sinkopt.problem import (DEFAULT_SAMPLER, GEOMETRY_VARIABLES, OBJECTIVES, SAMPLERS, AirSupply,
+                             FanOption, Limits, Problem, ProcessLimits, Variable)
 from sinkopt.study_schema import (PROCESS_KEYS, PROCESS_PRESETS, Problems, Table, cross_check,
                                   item_path, join_path, read_impedance_curve, resolve_files, show,
                                   span)
@@ -40,7 +40,6 @@ from sinkopt.study_schema import (PROCESS_KEYS, PROCESS_PRESETS, Problems, Table
 __all__ = ["load_study", "parse_study", "fan_label", "fan_choices", "fan_speed_ratio",
            "mount_variable", "SAMPLERS", "SECTIONS", "FAN_SPEED_MAX"]
 
-SAMPLERS = ("tpe", "nsga2", "random", "gp")
 SECTIONS = ("study", "ambient", "device", "sink", "air", "objectives", "constraints", "model")
 #: Highest allowed fan speed, as a fraction of the rated speed (fan laws beyond the data).
 FAN_SPEED_MAX = 1.2
@@ -127,7 +126,7 @@ def _study(root: Table, default_name: str) -> dict:
         "name": t.text("name", default=default_name),
         "trials": t.integer("trials", default=300, minimum=1),
         "seed": t.integer("seed", default=None, minimum=0),
-        "sampler": t.text("sampler", default="tpe", choices=SAMPLERS),
+        "sampler": t.text("sampler", default=DEFAULT_SAMPLER, choices=SAMPLERS),
     }
 
 

@@ -28,8 +28,8 @@ def register(sub) -> None:
     run.add_argument("--timeout", type=float, default=None, help="stop after this many seconds")
     run.add_argument("--seed", type=int, default=None, help="sampler seed (default: the study's, "
                      "else drawn and recorded)")
-    run.add_argument("--sampler", choices=("tpe", "nsga2", "random", "gp"), default=None,
-                     help="search algorithm (default: the study's, else tpe)")
+    run.add_argument("--sampler", choices=("tpe-refine", "tpe", "nsga2", "random", "gp"),
+                     default=None, help="search scheme (default: the study's, else tpe-refine)")
     run.add_argument("--out", type=Path, default=None,
                      help="results folder (default: results/<study name>)")
     run.add_argument("--storage", default=None,
@@ -209,7 +209,8 @@ def cmd_run(args) -> int:
                               progress=progress)
         else:
             run_search(problem, study, n_trials, timeout=args.timeout,
-                       batch_size=args.batch or DEFAULT_BATCH, progress=progress)
+                       batch_size=args.batch or DEFAULT_BATCH, progress=progress,
+                       scheme=sampler, seed=seed)
     except KeyboardInterrupt:
         interrupted = True
     finally:
