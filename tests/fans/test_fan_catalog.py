@@ -4,7 +4,7 @@ from __future__ import annotations
 import warnings
 
 import pytest
-from conftest import CATALOG
+from fan_helpers import CATALOG
 
 from sinkopt.fans import FanArray, load_fan_curve, solve_operating_point
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 import shutil
 
 import pytest
-from conftest import CATALOG, write
+from fan_helpers import CATALOG, write
 
 from sinkopt.cli import main
 from sinkopt.commands.fan import curve_plot_data, fan_curve_figure, format_curve
@@ -62,13 +62,13 @@ def test_check_every_catalog_file(name, tmp_path, capsys):
     assert "invented demo data, not a real product" in capsys.readouterr().out
 
 
-@pytest.mark.filterwarnings("ignore:.*6 or more are recommended:sinkopt.fans.FanCurveWarning")
 def test_table_prints_si_and_file_units(tmp_path):
     path = write(tmp_path, "# name: t\nflow_cfm,pressure_inH2O\n0,1\n2,0.5\n4,0\n")
     text = format_curve(load_fan_curve(path))
     # 2 cfm = 2 * 0.3048^3/60 m3/s = 9.438948864e-4; 0.5 inH2O = 124.544455 Pa (exact factors)
     assert "0.000943895" in text and "124.544" in text
     assert "flow [cfm]" in text and "pressure [inH2O]" in text
+    assert "note: only 3 data points; 6 or more are recommended" in text
 
 
 def test_plot_data_is_in_file_units():

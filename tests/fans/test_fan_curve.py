@@ -5,7 +5,7 @@ import math
 
 import numpy as np
 import pytest
-from conftest import CATALOG, quadratic_fan
+from fan_helpers import CATALOG, quadratic_fan
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.interpolate import PchipInterpolator
@@ -13,6 +13,11 @@ from scipy.interpolate import PchipInterpolator
 from sinkopt.errors import InputError
 from sinkopt.fans import FanArray, FanCurve, load_fan_curve
 from sinkopt.fans.curve import _IntervalFinder, pchip_evaluate
+
+
+@pytest.fixture
+def quad_fan():
+    return quadratic_fan()
 
 
 knots = st.lists(st.floats(1e-4, 1.0), min_size=3, max_size=40)

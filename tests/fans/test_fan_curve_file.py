@@ -3,15 +3,11 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from conftest import write
+from fan_helpers import write
 
 from sinkopt.cli import main
 from sinkopt.errors import InputError
 from sinkopt.fans import FanCurveWarning, load_fan_curve, parse_fan_curve
-
-# most files here are deliberately tiny (3 points)
-pytestmark = pytest.mark.filterwarnings(
-    "ignore:.*6 or more are recommended:sinkopt.fans.FanCurveWarning")
 
 GOOD = """\
 # sinkopt-fan-curve: 1
@@ -219,8 +215,3 @@ def test_duplicate_rows_warning_reaches_cli_stderr(tmp_path, capsys):
 def test_parse_from_text_without_file():
     fan = parse_fan_curve(HEAD + "2,0\n0,9\n1,5\n")
     assert fan.source == "<text>" and fan.lines == (3, 4, 2)
-
-
-def test_few_points_warn():
-    with pytest.warns(FanCurveWarning, match=r"f\.csv:6: only 5 data points; 6 or more"):
-        parse_fan_curve(HEAD + "0,9\n1,8\n2,6\n3,3\n4,0\n", "f.csv")

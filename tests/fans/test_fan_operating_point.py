@@ -5,13 +5,18 @@ import math
 
 import numpy as np
 import pytest
-from conftest import CATALOG, K_SYS, P0_Pa, QMAX_m3_s, quadratic_fan
+from fan_helpers import CATALOG, K_SYS, P0_Pa, QMAX_m3_s, quadratic_fan
 from scipy.interpolate import PchipInterpolator
 from scipy.optimize import brentq
 
 from sinkopt.errors import InputError
 from sinkopt.fans import FanArray, FanCurve, load_fan_curve, solve_operating_point
 from sinkopt.fans.operating_point import DEFAULT_FAN_EFFICIENCY
+
+
+@pytest.fixture
+def quad_fan():
+    return quadratic_fan()
 
 # PCHIP through 40 equally spaced points of the quadratic fan reproduces it to ~1e-6 relative
 # near the operating points (measured: 1.0e-6 on Q); 1e-5 leaves margin for that interpolation

@@ -10,10 +10,6 @@ from sinkopt.fans import parse_fan_curve
 from sinkopt.fans.units import (FLOW_UNITS, PRESSURE_UNITS, flow_unit, lookup_unit, parse_column,
                                 pressure_unit)
 
-# most files here are deliberately tiny (3 points)
-pytestmark = pytest.mark.filterwarnings(
-    "ignore:.*6 or more are recommended:sinkopt.fans.FanCurveWarning")
-
 # Exact definitions, in exact rational arithmetic:
 FOOT = F("0.3048")  # international foot, exact (international yard and pound agreement, 1959)
 INCH = F("0.0254")  # international inch, exact (same agreement)

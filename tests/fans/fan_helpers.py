@@ -1,10 +1,13 @@
-"""Shared helpers of the fan tests: the closed-form quadratic fan of physics.md §7."""
+"""Shared helpers of the fan tests: the closed-form quadratic fan of physics.md §7.
+
+(Not named conftest.py: a second conftest module would clash with tests/study/conftest.py
+under --doctest-modules.)
+"""
 from __future__ import annotations
 
 from pathlib import Path
 
 import numpy as np
-import pytest
 
 from sinkopt.fans import FanCurve
 
@@ -22,11 +25,6 @@ def quadratic_fan(n_points: int = 40, size_mm: float | None = None, **kw) -> Fan
     q = np.linspace(0.0, QMAX_m3_s, n_points)
     return FanCurve(q, P0_Pa * (1.0 - (q / QMAX_m3_s) ** 2), name="quadratic", size_mm=size_mm,
                     **kw)
-
-
-@pytest.fixture
-def quad_fan() -> FanCurve:
-    return quadratic_fan()
 
 
 def write(tmp_path: Path, text: str, name: str = "fan.csv") -> Path:
