@@ -22,7 +22,7 @@ from optuna.distributions import (BaseDistribution, CategoricalDistribution, Flo
                                   IntDistribution)
 from optuna.trial import TrialState
 
-from sinkopt.pareto import to_minimization
+from sinkopt.pareto import nondominated_mask, to_minimization
 from sinkopt.problem import OBJECTIVES, SAMPLERS, Problem
 from sinkopt.system import BatchResult, evaluate_params
 
@@ -239,6 +239,12 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
     best = max((t.user_attrs.get("worst_margin_K", -math.inf) for t in
                 study.get_trials(deepcopy=False, states=(TrialState.COMPLETE,))
                 if t.user_attrs.get("feasible")), default=-math.inf)
+    directions = [OBJECTIVES[o][1] for o in problem.objectives]
+    done_feasible = [t.values for t in study.get_trials(deepcopy=False,
+                                                        states=(TrialState.COMPLETE,))
+                     if t.user_attrs.get("feasible")]
+    front = to_minimization(np.array(done_feasible).reshape(-1, len(directions)), directions)
+    front = front[nondominated_mask(front)] if len(front) else front
     worker = _worker_id()
     batches = 0
     while True:
@@ -280,7 +286,11 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
         feasible += int(result.feasible.sum())
         if result.feasible.any():
             best = max(best, float(np.max(result.evaluation.worst_margin[result.feasible])))
+            front = np.vstack([front, to_minimization(result.objectives[result.feasible],
+                                                      directions)])
+            front = front[nondominated_mask(front)]
         if progress:
             progress(SearchProgress(finished + batch if stop_at_total else added,
-                                    n_trials, feasible, -1, best, time.monotonic() - start))
+                                    n_trials, feasible, len(front), best,
+                                    time.monotonic() - start))
     return added

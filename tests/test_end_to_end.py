@@ -150,3 +150,18 @@ def test_interrupt_saves_results_and_exits_130(tmp_path):
     assert proc.returncode == 130, err
     assert (out / "trials.csv").is_file() and (out / "run.json").is_file()
     assert "interrupted" in err
+
+
+def test_notebook_api_reads_the_results_folder(demo_run):
+    import sinkopt.api as so
+
+    res = so.load_results(demo_run)
+    trials, pareto = res.trials_df(), res.pareto_df()
+    assert len(trials) == 120 and len(pareto) == int(trials["pareto"].sum())
+    first = int(pareto["trial"].iloc[0])
+    rec = res.design(first)
+    assert rec["trial"] == first
+    assert rec["volume_cm3"] == pytest.approx(float(pareto["volume_cm3"].iloc[0]))
+    assert res.run_info["seed"] == 3
+    with pytest.raises(FileNotFoundError):
+        so.load_results(demo_run / "designs")
