@@ -58,7 +58,7 @@ def run_study(study, trials: int | None = None, seed: int | None = None, out=Non
     from sinkopt.cli import main
     from sinkopt.study_file import load_study
 
-    out = Path(out) if out is not None else Path("results") / load_study(study).name
+    out = Path(out) if out is not None else load_study(study).default_results_dir()
     argv = ["run", str(study), "--out", str(out), "--no-progress"]
     if trials is not None:
         argv += ["--trials", str(trials)]

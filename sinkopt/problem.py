@@ -152,6 +152,16 @@ class Problem:
     source: Path | None = None  #: the study file
     inputs: tuple[Path, ...] = ()  #: every file read (study, fan curves, impedance curves)
 
+    @property
+    def slug(self) -> str:
+        """The study name as a folder name (``demo inverter`` -> ``demo-inverter``)."""
+        import re
+
+        return re.sub(r"[^A-Za-z0-9._-]+", "-", self.name).strip("-") or "study"
+
+    def default_results_dir(self) -> Path:
+        return Path("results") / self.slug
+
     def variable(self, name: str) -> Variable:
         for v in self.variables:
             if v.name == name:

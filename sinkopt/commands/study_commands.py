@@ -31,7 +31,7 @@ def register(sub) -> None:
     run.add_argument("--sampler", choices=("tpe-refine", "tpe", "nsga2", "random", "gp"),
                      default=None, help="search scheme (default: the study's, else tpe-refine)")
     run.add_argument("--out", type=Path, default=None,
-                     help="results folder (default: results/<study name>)")
+                     help="results folder (default: results/<study name as a folder name>)")
     run.add_argument("--storage", default=None,
                      help="Optuna storage URL, e.g. postgresql://user@host/db "
                           "(default: a journal file in the results folder)")
@@ -183,7 +183,7 @@ def cmd_run(args) -> int:
     from sinkopt.search import DEFAULT_BATCH, fail_stale_trials, open_study, run_search, storage_for
 
     problem = _load(args.study)
-    out = args.out or Path("results") / problem.name
+    out = args.out or problem.default_results_dir()
     out.mkdir(parents=True, exist_ok=True)
     n_trials = args.trials or problem.trials
     seed = args.seed if args.seed is not None else problem.seed
