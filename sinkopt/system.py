@@ -247,8 +247,8 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None) -> B
     valid = (g.n_fins >= 2) & (g.n_fins * g.fin_thickness < g.width)
     # Designs that cannot exist are evaluated on a stand-in geometry (so no NaN leaks into the
     # batch) and then marked infeasible with penalty values.
-    safe = SinkGeometry.of(**{k: np.where(valid, getattr(g, k), getattr(g, k)) for k in
-                              ("width", "length", "fin_height", "base_thickness")},
+    safe = SinkGeometry.of(width=g.width, length=g.length, fin_height=g.fin_height,
+                           base_thickness=g.base_thickness,
                            fin_thickness=np.where(valid, g.fin_thickness, g.width / (4 * g.n_fins + 4)),
                            n_fins=np.where(g.n_fins >= 2, g.n_fins, 2))
     air = inlet_air(problem.conditions)
