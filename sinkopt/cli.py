@@ -26,7 +26,7 @@ EXIT_INFEASIBLE = 3
 EXIT_INTERRUPTED = 130
 
 # Modules under sinkopt.commands that provide ``register(subparsers)``.
-COMMAND_MODULES = ("fan", "study_commands", "setup", "worker_command")
+COMMAND_MODULES = ("fan", "study_commands", "setup", "worker_command", "report_command")
 
 
 def build_parser() -> argparse.ArgumentParser:

@@ -11,7 +11,9 @@ script); the embedded JSON has ``<``, ``>`` and ``&`` written as ``\\u003c`` etc
 close the ``<script>`` block; text handed to plotly (which reads a few HTML-like tags) is escaped
 too.
 
-Plotly is imported lazily, inside the functions that need it.
+The figure functions return plain plotly figure dicts (``{"data": [...], "layout": {...}}``,
+checked against plotly's schema by the tests); plotly itself is imported only to inline
+plotly.js.
 """
 from __future__ import annotations
 
@@ -101,10 +103,12 @@ def _json_default(o):
     raise TypeError(f"not JSON serialisable: {type(o).__name__}")
 
 
-def _figure_json(fig) -> dict[str, Any]:
-    d = json.loads(fig.to_json())
-    d["layout"].pop("template", None)
-    return _round(d, 5)
+def _scatter(**kw) -> dict[str, Any]:
+    return {"type": "scatter", **kw}
+
+
+def _bar(**kw) -> dict[str, Any]:
+    return {"type": "bar", **kw}
 
 
 def _base_layout(**extra) -> dict[str, Any]:
@@ -125,16 +129,14 @@ def _axis(title: str, **extra) -> dict[str, Any]:
 def fan_system_figure(curves: dict[str, Any]):
     """Fan-array curve(s) against the system curve, with the operating point and the stall
     region shaded; flows drawn in m³/h."""
-    import plotly.graph_objects as go
-
     h = 3600.0
-    fig = go.Figure()
+    traces: list[dict[str, Any]] = []
     p_top = 0.0
     sysc = curves.get("system_curve") or {"flow_m3_s": [], "pressure_Pa": []}
     stall = curves.get("stall_limit_m3_s")
     rated = curves.get("fan_curve_rated")
     if rated and rated["flow_m3_s"]:
-        fig.add_trace(go.Scatter(
+        traces.append(_scatter(
             x=[q * h for q in rated["flow_m3_s"]], y=rated["pressure_Pa"], mode="lines",
             name="fans at top of speed range", line={"color": "#9aa0a6", "dash": "dot",
                                                      "width": 1.5},
@@ -153,24 +155,24 @@ def fan_system_figure(curves: dict[str, Any]):
             unstable = [i for i, x in enumerate(q) if x <= qs * (1 + 1e-9)]
             stable = [i for i, x in enumerate(q) if x >= qs * (1 - 1e-9)]
             if len(unstable) > 1:
-                fig.add_trace(go.Scatter(
+                traces.append(_scatter(
                     x=[q[i] for i in unstable], y=[p[i] for i in unstable], mode="lines",
                     name="fans, stall region", line={"color": ACCENT, "dash": "dash", "width": 2},
                     hovertemplate="%{x:.4g} m³/h, %{y:.4g} Pa<extra>stall region</extra>"))
         else:
             stable = list(range(len(q)))
-        fig.add_trace(go.Scatter(
+        traces.append(_scatter(
             x=[q[i] for i in stable], y=[p[i] for i in stable], mode="lines", name=name,
             line={"color": ACCENT, "width": 2.5},
             hovertemplate="%{x:.4g} m³/h, %{y:.4g} Pa<extra>fans</extra>"))
     if sysc["flow_m3_s"]:
-        fig.add_trace(go.Scatter(
+        traces.append(_scatter(
             x=[q * h for q in sysc["flow_m3_s"]], y=sysc["pressure_Pa"], mode="lines",
             name="system (sink and extra losses)", line={"color": INK, "width": 2},
             hovertemplate="%{x:.4g} m³/h, %{y:.4g} Pa<extra>system</extra>"))
     op = curves.get("operating_point")
     if op:
-        fig.add_trace(go.Scatter(
+        traces.append(_scatter(
             x=[op["flow_m3_s"] * h], y=[op["pressure_Pa"]], mode="markers",
             name="operating point", marker={"size": 11, "color": WARM,
                                             "line": {"color": INK, "width": 1.5}},
@@ -184,45 +186,39 @@ def fan_system_figure(curves: dict[str, Any]):
                        "y0": 0, "y1": 1, "fillcolor": "rgba(181,101,43,0.12)", "line": {"width": 0},
                        "layer": "below"})
         notes.append({"x": stall * h / 2, "y": 1, "xref": "x", "yref": "paper",
-                      "yanchor": "top", "text": "stall region", "showarrow": False,
+                      "yanchor": "top", "text": "stall region at this speed", "showarrow": False,
                       "font": {"color": WARM, "size": 11}})
-    fig.update_layout(**_base_layout(
+    return {"data": traces, "layout": _base_layout(
         height=340, shapes=shapes, annotations=notes,
         xaxis=_axis("airflow [m³/h]", rangemode="tozero"),
-        yaxis=_axis("static pressure [Pa]", range=[0, p_top * 1.08])))
-    return fig
+        yaxis=_axis("static pressure [Pa]", range=[0, p_top * 1.08]))}
 
 
 def breakdown_figure(devices: Sequence[dict[str, Any]], ambient_C: float | None = None):
     """Stacked temperature rises from the inlet air to each junction, one bar per device, with
     each device's allowed rise (Tj,max − inlet air) marked."""
-    import plotly.graph_objects as go
-
     names = [_t(d["name"]) for d in devices]
-    fig = go.Figure()
+    traces: list[dict[str, Any]] = []
     for (key, label), colour in zip(BREAKDOWN_LABELS.items(), BREAKDOWN_COLOURS):
-        fig.add_trace(go.Bar(
+        traces.append(_bar(
             x=names, y=[(d.get("breakdown_K") or {}).get(key) for d in devices], name=label,
             marker={"color": colour},
             hovertemplate="%{x}: %{y:.3g} K<extra>" + _t(label) + "</extra>"))
     if ambient_C is not None:
-        fig.add_trace(go.Scatter(
+        traces.append(_scatter(
             x=names, y=[d["tj_max_C"] - ambient_C for d in devices], mode="markers",
             name="allowed rise (Tj,max − inlet air)",
             marker={"symbol": "line-ew-open", "size": 34, "color": WARM,
                     "line": {"width": 2.5, "color": WARM}},
             hovertemplate="%{x}: allowed %{y:.3g} K<extra></extra>"))
-    fig.update_layout(**_base_layout(
+    return {"data": traces, "layout": _base_layout(
         height=340, barmode="stack", bargap=0.45,
         xaxis=_axis("device", type="category"),
-        yaxis=_axis("temperature rise above inlet air [K]", rangemode="tozero")))
-    return fig
+        yaxis=_axis("temperature rise above inlet air [K]", rangemode="tozero"))}
 
 
 def parcoords_figure(pc: dict[str, Any]):
     """Parallel coordinates of every trial, coloured infeasible / dominated / Pareto."""
-    import plotly.graph_objects as go
-
     dims = []
     for d in pc["dimensions"]:
         label = d["label"] + (f" [{d['unit']}]" if d.get("unit") and d["unit"] != "-" else "")
@@ -231,14 +227,14 @@ def parcoords_figure(pc: dict[str, Any]):
             dim["tickvals"] = d["tickvals"]
             dim["ticktext"] = [_t(x) for x in d["ticktext"]]
         dims.append(dim)
-    fig = go.Figure(go.Parcoords(
-        line={"color": pc["status"], "cmin": 0, "cmax": 2,
-              "colorscale": [[0, "#d5d8dc"], [0.5, "#9fb3c2"], [1, WARM]], "showscale": False},
-        dimensions=dims, labelangle=-20, labelside="bottom",
-        labelfont={"size": 11}, tickfont={"size": 10}, rangefont={"size": 9}))
-    fig.update_layout(font=FONT, paper_bgcolor="rgba(0,0,0,0)", height=460,
-                      margin={"l": 70, "r": 70, "t": 40, "b": 90})
-    return fig
+    line = {"color": pc["status"], "cmin": 0, "cmax": 2, "showscale": False,
+            "colorscale": [[0, "#d5d8dc"], [0.5, "#9fb3c2"], [1, WARM]]}
+    trace = {"type": "parcoords", "line": line, "dimensions": dims, "labelangle": -20,
+             "labelside": "bottom", "labelfont": {"size": 11}, "tickfont": {"size": 10},
+             "rangefont": {"size": 9}}
+    return {"data": [trace], "layout": {"font": FONT, "paper_bgcolor": "rgba(0,0,0,0)",
+                                        "height": 460,
+                                        "margin": {"l": 150, "r": 60, "t": 40, "b": 90}}}
 
 
 def report_figures(data: dict[str, Any]) -> dict[str, Any]:
@@ -246,11 +242,11 @@ def report_figures(data: dict[str, Any]) -> dict[str, Any]:
     design, the fan/system curves and the temperature breakdown."""
     figs: dict[str, Any] = {"parcoords": None, "designs": {}}
     if data["parcoords"]["trial"]:
-        figs["parcoords"] = _figure_json(parcoords_figure(data["parcoords"]))
+        figs["parcoords"] = _round(parcoords_figure(data["parcoords"]), 5)
     for key, d in data["designs"].items():
         figs["designs"][key] = {
-            "fan_system": _figure_json(fan_system_figure(d["curves"])),
-            "breakdown": _figure_json(breakdown_figure(d["devices"], d.get("ambient_C"))),
+            "fan_system": _round(fan_system_figure(d["curves"]), 5),
+            "breakdown": _round(breakdown_figure(d["devices"], d.get("ambient_C")), 5),
         }
     return figs
 
@@ -416,8 +412,9 @@ def render_report(results: Results, info: dict[str, Any] | None = None) -> str:
     summary = (f"{s['trials']} trials: {s['pareto']} designs on the Pareto front, {s['feasible']} "
                f"feasible but dominated, {s['infeasible']} infeasible. Objectives: {objectives}.")
     if s["not_plotted"]:
-        summary += (f" {s['not_plotted']} trials have no operating point or no valid geometry "
-                    "and are not plotted.")
+        n = s["not_plotted"]
+        summary += (f" Not plotted: {n} {'trial' if n == 1 else 'trials'} with no fan operating "
+                    "point or no valid geometry.")
     generated = _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds")
     page = _asset("page.html")
     fill = {

@@ -72,7 +72,7 @@ VARIABLE_LABELS = {
     "n_fins": ("number of fins N", "-"),
     "base_thickness_mm": ("base thickness", "mm"),
     "fan": ("fan", ""),
-    "fan_speed": ("fan speed setting (0..1 of range)", "-"),
+    "fan_speed": ("fan speed setting (0 to 1)", "-"),
 }
 
 _STATUS = ("infeasible", "feasible", "pareto")
@@ -133,7 +133,8 @@ def _merged(results: Results) -> tuple[dict[str, np.ndarray], np.ndarray, np.nda
         for k, i in enumerate(rows):
             params[i] = e.params[k]
     with np.errstate(invalid="ignore"):
-        objectives[bad[:, None] | ~np.isfinite(objectives) | (np.abs(objectives) >= PENALTY)] = np.nan
+        missing = bad[:, None] | ~np.isfinite(objectives) | (np.abs(objectives) >= PENALTY)
+    objectives[missing] = np.nan
     return cols, objectives, feasible, exact, params
 
 
@@ -256,7 +257,7 @@ def parcoords_data(results: Results, points: dict[str, Any] | None = None) -> di
         dims.append({"key": name, "label": label, "values": [code[values[i]] for i in keep],
                      "tickvals": list(range(len(labels))), "ticktext": labels})
     for name, values in points["numeric"].items():
-        if name not in problem_variable_names(results.problem):
+        if name not in _variable_names(results.problem):
             continue
         kept = [values[i] for i in keep]
         if len(set(kept)) < 2:
@@ -271,7 +272,7 @@ def parcoords_data(results: Results, points: dict[str, Any] | None = None) -> di
             "dimensions": dims}
 
 
-def problem_variable_names(problem: Problem) -> set[str]:
+def _variable_names(problem: Problem) -> set[str]:
     return {v.name for v in problem.variables}
 
 

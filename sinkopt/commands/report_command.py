@@ -1,0 +1,110 @@
+"""``sinkopt report``: rebuild ``report.html`` of a results folder from its stored study."""
+from __future__ import annotations
+
+import argparse
+import datetime as _dt
+import json
+import sys
+from pathlib import Path
+
+from sinkopt.errors import InputError
+
+__all__ = ["register", "cmd_report", "find_study_file"]
+
+
+def register(sub) -> None:
+    rep = sub.add_parser(
+        "report", help="rebuild report.html of a results folder",
+        description="Rebuild the interactive report (report.html) of a results folder from its "
+                    "stored trials. The study file is the one recorded in run.json if it still "
+                    "exists, else the copy in RESULTS_DIR/inputs/ (or give --study).",
+        formatter_class=argparse.RawDescriptionHelpFormatter)
+    rep.add_argument("results_dir", type=Path, metavar="RESULTS_DIR",
+                     help="results folder written by 'sinkopt run'")
+    rep.add_argument("--storage", default=None,
+                     help="Optuna storage URL the run used (default: the folder's study.journal)")
+    rep.add_argument("--study", type=Path, default=None,
+                     help="study file to use instead of the one recorded in run.json")
+    rep.add_argument("--out", type=Path, default=None,
+                     help="where to write the page (default: RESULTS_DIR/report.html)")
+    rep.set_defaults(func=cmd_report)
+
+
+def _read_info(out_dir: Path) -> dict:
+    path = out_dir / "run.json"
+    try:
+        return json.loads(path.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise InputError("no run.json: not a results folder written by 'sinkopt run'",
+                         str(out_dir)) from None
+    except (OSError, ValueError) as exc:
+        raise InputError(f"cannot read run.json: {exc}", str(path)) from None
+
+
+def find_study_file(out_dir: Path, info: dict) -> list[Path]:
+    """Candidate study files, best first: the original recorded in run.json (first of its
+    inputs; relative fan-curve paths resolve from there), then the copy in ``inputs/``."""
+    recorded = [Path(p) for p in (info.get("inputs") or {}) if str(p).endswith(".toml")]
+    out: list[Path] = []
+    for p in recorded[:1]:
+        if p.is_file():
+            out.append(p)
+        copy = out_dir / "inputs" / p.name
+        if copy.is_file():
+            out.append(copy)
+    if not out:
+        out += sorted((out_dir / "inputs").glob("*.toml"))
+    return out
+
+
+def cmd_report(args) -> int:
+    import optuna
+
+    from sinkopt.report import write_report
+    from sinkopt.results import collect_results
+    from sinkopt.results_io import sha256_file
+    from sinkopt.search import STUDY_JOURNAL, storage_for
+    from sinkopt.study_file import load_study
+
+    out_dir: Path = args.results_dir
+    if not out_dir.is_dir():
+        raise InputError("results folder not found", str(out_dir))
+    info = _read_info(out_dir)
+    candidates = [args.study] if args.study else find_study_file(out_dir, info)
+    if not candidates:
+        raise InputError("run.json records no study file and inputs/ holds none; give --study",
+                         str(out_dir))
+    problem, errors = None, []
+    for path in candidates:
+        try:
+            problem = load_study(path)
+            break
+        except InputError as exc:
+            errors.append(str(exc))
+    if problem is None:
+        raise InputError("cannot load the study (tried " + ", ".join(map(str, candidates)) +
+                         "); give --study with the original file. First error: " + errors[0],
+                         str(out_dir))
+    recorded = {Path(p).name: h for p, h in (info.get("inputs") or {}).items()}
+    if problem.source and recorded.get(Path(problem.source).name) not in (
+            None, sha256_file(problem.source)):
+        print(f"sinkopt: warning: {problem.source} changed since the run (SHA-256 differs); "
+              "the report uses the file as it is now", file=sys.stderr)
+    if not args.storage and not (out_dir / STUDY_JOURNAL).is_file():
+        raise InputError(f"no {STUDY_JOURNAL} in the results folder; give --storage with the "
+                         "URL the run used", str(out_dir))
+    optuna.logging.set_verbosity(optuna.logging.WARNING)
+    storage = storage_for(out_dir, args.storage)
+    name = info.get("study") or problem.name
+    try:
+        study = optuna.load_study(study_name=name, storage=storage)
+    except KeyError:
+        raise InputError(f"the storage holds no study named {name!r}", str(out_dir)) from None
+    results = collect_results(problem, study)
+    info = dict(info, report_rebuilt_utc=_dt.datetime.now(_dt.timezone.utc)
+                .isoformat(timespec="seconds"))
+    target = args.out or out_dir / "report.html"
+    write_report(results, target, info)
+    print(f"{len(results.trial_numbers)} trials, {len(results.pareto_trials)} Pareto designs "
+          f"-> {target}")
+    return 0
