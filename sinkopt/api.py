@@ -1,8 +1,9 @@
-"""Notebook API: run a study and read a results folder as pandas DataFrames.
+"""Notebook API: run a study and read a results folder as pandas DataFrames::
 
->>> import sinkopt.api as so                                      # doctest: +SKIP
->>> res = so.run_study("studies/demo_inverter.toml", trials=200, seed=1, out="results/demo")
->>> res.pareto_df()[["trial", "volume_cm3", "fan_power_W", "worst_margin_K"]]
+    import sinkopt.api as so
+    res = so.run_study("studies/demo_inverter.toml", trials=200, seed=1, out="results/demo")
+    res.pareto_df()[["trial", "volume_cm3", "fan_power_W", "worst_margin_K"]]
+    res.design(int(res.pareto_df()["trial"][0]))["devices"]
 """
 from __future__ import annotations
 

@@ -24,6 +24,7 @@ __all__ = [
     "Hydraulics",
     "Thermal",
     "sink_hydraulics",
+    "sink_pressure_drop_function",
     "sink_thermal",
 ]
 
@@ -119,17 +120,107 @@ def sink_hydraulics(width, length, fin_height, fin_thickness, n_fins, flow, air:
     fre = cv.fre_rectangular_duct_shah_london_1978(aspect)
     l_plus = length / (dh * re)
     f_lam = pd_.friction_apparent_developing_muzychka_yovanovich_2009(l_plus, fre) / re
-    f_turb = pd_.friction_fanning_turbulent_smooth(np.maximum(re, cv.RE_TRANSITION_START))
     sigma = geo.open_area_ratio(width, n_fins, fin_thickness)
     kc = pd_.contraction_loss_culham_muzychka_2001(sigma)
     ke = pd_.EXIT_LOSS_MODELS[exit_loss](sigma)
     dynamic = 0.5 * air.density * velocity**2
-    dp_lam = (kc + 4.0 * f_lam * length / dh + ke) * dynamic
-    dp_turb = (kc + 4.0 * f_turb * length / dh + ke) * dynamic
-    w = cv.transition_weight(re)
-    dp = (1.0 - w) * dp_lam + w * (dp_lam**5 + dp_turb**5) ** 0.2
+    dp = (kc + 4.0 * f_lam * length / dh + ke) * dynamic
+    dp = _blend_turbulent(dp, re, kc + ke, length / dh, dynamic)
     f_app = (dp / dynamic - kc - ke) * dh / (4.0 * length)
     return Hydraulics(b, velocity, dh, re, l_plus, f_app, kc, ke, dp)
+
+
+def _blend_turbulent(dp_lam, re, k_minor, l_over_dh, dynamic):
+    """Blend the turbulent pressure drop in where Re_Dh > 2300 (see :func:`sink_hydraulics`).
+
+    ``dp = (1 − w) dp_lam + w (dp_lam⁵ + dp_turb⁵)^(1/5)``; w = 0 gives exactly ``dp_lam``, so
+    only the designs in or past the transition are computed (the Petukhov factor's log and the
+    fifth powers are most of the cost of a laminar batch).
+    """
+    dp_lam = np.asarray(dp_lam)
+    re = np.asarray(re)
+    turb = re > cv.RE_TRANSITION_START
+    if not turb.any():
+        return dp_lam[()]
+    parts = [np.asarray(x, dtype=float) for x in (k_minor, l_over_dh, dynamic)]
+    shape = np.broadcast_shapes(dp_lam.shape, re.shape, *(x.shape for x in parts))
+    if dp_lam.shape != shape or re.shape != shape:
+        dp_lam, re = np.broadcast_to(dp_lam, shape), np.broadcast_to(re, shape)
+        turb = np.broadcast_to(turb, shape)
+    k_minor, l_over_dh, dynamic = (x[turb] if x.shape == shape else np.broadcast_to(x, shape)[turb]
+                                   for x in parts)
+    re_t = re[turb]
+    lam = dp_lam[turb]
+    f_turb = pd_.friction_fanning_turbulent_smooth(re_t)  # re_t > 2300: no floor needed
+    turbulent = (k_minor + 4.0 * f_turb * l_over_dh) * dynamic
+    w = cv.transition_weight(re_t)
+    out = np.array(dp_lam, dtype=float, copy=True)
+    out[turb] = (1.0 - w) * lam + w * (lam**5 + turbulent**5) ** 0.2
+    return out
+
+
+def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins,
+                                air: AirProperties, hydraulic_diameter="parallel_plates",
+                                exit_loss="culham_muzychka"):
+    r"""``Δp(flow)`` of fixed fin arrays: :func:`sink_hydraulics`'s pressure drop, with every
+    geometry- and air-only quantity computed once.
+
+    For the fan operating-point solver, which evaluates the same n sinks at ~10 flows. Same
+    formulas as :func:`sink_hydraulics`, regrouped per design as
+
+    .. math:: \Delta p_{lam} = \left(K_c + K_e + \frac{4L}{D_h}
+              \frac{\sqrt{3.44^2 D_h Re/L + (fRe)^2}}{Re}\right)\frac{\rho}{2A_c^2} Q^2,
+              \quad Re = \frac{\rho D_h}{\mu A_c} Q
+
+    (results equal to round-off, ~1e-15 relative).
+
+    Parameters
+    ----------
+    width, length, fin_height, fin_thickness, n_fins, air, hydraulic_diameter, exit_loss
+        As :func:`sink_hydraulics` (arrays broadcast to the n designs) [m], [-].
+
+    Returns
+    -------
+    callable
+        ``dp(flow)``: volume flow through the fins, shape (n,) or scalar [m^3/s] -> static
+        pressure drop [Pa], shape (n,).
+
+    Examples
+    --------
+    REF-1 (physics.md §8): 65.6113 Pa.
+
+    >>> from sinkopt.physics.air import AirProperties
+    >>> air = AirProperties(1.184318, 1.844808e-5, 0.026247, 1006.308, 298.15, 101325.0)
+    >>> dp = sink_pressure_drop_function(0.05, 0.05, 0.025, 0.001, 20, air)
+    >>> round(float(dp(0.005)), 4)
+    65.6113
+    """
+    _check_option("hydraulic_diameter", hydraulic_diameter, HYDRAULIC_DIAMETERS)
+    _check_option("exit_loss", exit_loss, tuple(pd_.EXIT_LOSS_MODELS))
+    h = np.asarray(fin_height, dtype=float)
+    length = np.asarray(length, dtype=float)
+    b = geo.fin_gap(width, n_fins, fin_thickness)
+    inv_area = 1.0 / geo.channel_flow_area(width, n_fins, fin_thickness, h)
+    dh = (geo.hydraulic_diameter_parallel_plates(b) if hydraulic_diameter == "parallel_plates"
+          else geo.hydraulic_diameter_rectangular_channel(b, h))
+    re_per_flow = air.density * dh / air.viscosity * inv_area
+    fre = cv.fre_rectangular_duct_shah_london_1978(np.minimum(b, h) / np.maximum(b, h))
+    fre2 = fre * fre
+    l_over_dh = length / dh
+    c_root = 3.44**2 / l_over_dh  # 3.44²/L⁺ = c_root·Re
+    c_friction = 4.0 * l_over_dh
+    sigma = geo.open_area_ratio(width, n_fins, fin_thickness)
+    k_minor = pd_.contraction_loss_culham_muzychka_2001(sigma) + pd_.EXIT_LOSS_MODELS[exit_loss](sigma)
+    dyn_per_flow2 = 0.5 * air.density * inv_area * inv_area
+
+    def pressure_drop(flow):
+        q = np.asarray(flow, dtype=float)
+        re = np.maximum(q * re_per_flow, 1e-12)
+        dynamic = dyn_per_flow2 * (q * q)
+        dp = (k_minor + c_friction * np.sqrt(c_root * re + fre2) / re) * dynamic
+        return _blend_turbulent(dp, re, k_minor, l_over_dh, dynamic)
+
+    return pressure_drop
 
 
 def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: AirProperties,

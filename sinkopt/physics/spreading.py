@@ -30,8 +30,10 @@ __all__ = [
 ]
 
 # Upper bound on the number of float64 elements in one (designs x m x n) block of the double
-# sum; about 16 MB per temporary, a handful of temporaries alive at once.
-_BLOCK_ELEMENTS = 2_000_000
+# sum: 2 MiB per temporary, so the handful alive at once stay in the core's L2/L3 cache
+# (measured on the 20-term coarse series, 50k designs: 262k elements 1.45x faster than 2M,
+# and faster than 65k or 16k, where per-call overhead takes over).
+_BLOCK_ELEMENTS = 262_144
 
 _SLA_KINDS = ("average", "peak")
 
@@ -349,26 +351,58 @@ def _eccentric_series_block(c, d, t, k, h, q, x0, y0, a, b, mode):
     """Exact multi-source series for one block of designs; (nb,) and (nb, s) in, (nb, s) out."""
     lam = mode * np.pi / c[:, None]  # (nb, M)
     dlt = mode * np.pi / d[:, None]  # (nb, N)
-    # Factor matrices (nb, s, M) and (nb, s, N): cos(lambda X) * sin(lambda a/2)/(lambda a/2).
-    # np.sinc(x) = sin(pi x)/(pi x), hence the division by pi.
-    u = np.cos(lam[:, None, :] * x0[:, :, None]) * np.sinc(
-        lam[:, None, :] * a[:, :, None] / (2 * np.pi))
-    v = np.cos(dlt[:, None, :] * y0[:, :, None]) * np.sinc(
-        dlt[:, None, :] * b[:, :, None] / (2 * np.pi))
+    # Factor matrices (nb, s, M) and (nb, s, N): cos(lambda X) * sin(lambda a/2)/(lambda a/2);
+    # the argument is > 0 (sources have a size), so sin(x)/x needs no guard at 0.
+    half = lam[:, None, :] * (0.5 * a)[:, :, None]
+    u = np.cos(lam[:, None, :] * x0[:, :, None])
+    u *= np.sin(half) / half
+    half = dlt[:, None, :] * (0.5 * b)[:, :, None]
+    v = np.cos(dlt[:, None, :] * y0[:, :, None])
+    v *= np.sin(half) / half
     tk = (t[:, None], k[:, None], h[:, None])
     wx = 2 * spreading_function(lam, *tk) / lam  # (nb, M)
     wy = 2 * spreading_function(dlt, *tk) / dlt
     strips = (np.einsum("nsm,nm,nm->ns", u, wx, np.einsum("ns,nsm->nm", q, u))
               + np.einsum("nsm,nm,nm->ns", v, wy, np.einsum("ns,nsm->nm", q, v)))
-    beta = np.sqrt(lam[:, :, None] ** 2 + dlt[:, None, :] ** 2)  # (nb, M, N)
-    tk3 = (t[:, None, None], k[:, None, None], h[:, None, None])
-    g = 4 * spreading_function(beta, *tk3) / beta
+    g = _phi_over_zeta(lam, dlt, t, h / k)  # 4 phi(beta)/beta, (nb, M, N)
     # Source-weighted mode amplitudes W_mn = sum_i Q_i u_im v_in, then each source's mean:
     # theta_j = sum_mn u_jm (g W)_mn v_jn. Both contractions are batched matmuls.
     w = np.matmul(np.swapaxes(q[:, :, None] * u, 1, 2), v)  # (nb, M, N)
-    double = np.sum(np.matmul(u, g * w) * v, axis=2)  # (nb, s)
+    w *= g
+    double = np.sum(np.matmul(u, w) * v, axis=2)  # (nb, s)
     spread = (strips + double) / (c * d * k)[:, None]
     return _uniform_rise(c, d, t, k, h, q) + spread
+
+
+def _phi_over_zeta(lam, dlt, t, h_over_k):
+    r"""``4 phi(beta)/beta`` on the grid beta_mn = sqrt(lam_m^2 + dlt_n^2), shape (nb, M, N).
+
+    The same value as ``4 * spreading_function(beta, t, k, h) / beta``, in fewer passes over the
+    (nb, M, N) block and with one ``exp`` instead of ``tanh`` (about half its cost): with
+    E = exp(-2 beta t), tanh(beta t) = (1 - E)/(1 + E), so
+
+    .. math:: \phi = \frac{(\beta + B) + E(\beta - B)}{(\beta + B) - E(\beta - B)},
+              \quad B = h/k
+
+    E is in (0, 1] (no overflow for thick plates), and the denominator is
+    beta (1 - E) + B (1 + E) > 0 with no cancellation worse than in 1 - E, which is >= ~0.1 for
+    every mode of a real base (beta t >= pi t / max(c, d)); measured against the tanh form:
+    ~1e-15 relative.
+    """
+    beta = np.square(lam)[:, :, None] + np.square(dlt)[:, None, :]
+    np.sqrt(beta, out=beta)
+    bk = h_over_k[:, None, None]
+    e = np.multiply(beta, (-2.0 * t)[:, None, None])
+    np.exp(e, out=e)
+    plus = np.add(beta, bk)
+    minus = np.subtract(beta, bk)
+    e *= minus  # E (beta - B)
+    np.subtract(plus, e, out=minus)  # denominator / beta
+    plus += e  # numerator
+    minus *= beta
+    np.divide(plus, minus, out=plus)
+    plus *= 4.0
+    return plus
 
 
 def resistance_spreading_song_lee_au_1994(
@@ -458,7 +492,8 @@ def resistance_spreading_song_lee_au_1994(
     tanh_lt = np.tanh(lam * tau)
     phi = (tanh_lt + lam_over_bi) / (1 + lam_over_bi * tanh_lt)
     if kind == "average":
-        psi = 0.5 * (1 - eps) ** 1.5 * phi
+        one_minus = 1 - eps
+        psi = 0.5 * (one_minus * np.sqrt(one_minus)) * phi  # (1 - eps)**1.5, without pow
     else:
         psi = (eps * tau + (1 - eps) * phi) / np.sqrt(np.pi)
     return _scalar_out(psi / (np.sqrt(np.pi) * k * a))
