@@ -202,12 +202,16 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
                batch_size: int = DEFAULT_BATCH,
                progress: Callable[[SearchProgress], None] | None = None,
                stop_at_total: bool = True, stale_after_s: float | None = 120.0,
-               scheme: str | None = None, seed: int | None = None) -> int:
+               scheme: str | None = None, seed: int | None = None,
+               should_stop: Callable[[], bool] | None = None) -> int:
     """Ask, evaluate and tell until the study holds ``n_trials`` finished trials (or, with
     ``stop_at_total=False``, until this call has added ``n_trials``), or ``timeout`` passes.
 
     Returns the number of trials this call finished. On KeyboardInterrupt the trials of the
     current batch are failed (so none stays RUNNING) and the interrupt is re-raised.
+
+    ``should_stop`` is polled between batches: a graceful stop (e.g. after Ctrl-C) that never
+    interrupts a write to the storage.
 
     Every ``STALE_CHECK_EVERY`` batches, trials left RUNNING by a dead worker (or older than
     ``stale_after_s``: a batch takes well under a second, so such a trial's worker is gone) are
@@ -254,6 +258,8 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
         finished = len(study.get_trials(deepcopy=False, states=(TrialState.COMPLETE,)))
         remaining = (n_trials - finished) if stop_at_total else (n_trials - added)
         if remaining <= 0 or (timeout is not None and time.monotonic() - start > timeout):
+            break
+        if should_stop is not None and should_stop():
             break
         batch = min(batch_size, remaining)
         if refiner is not None:

@@ -2,7 +2,9 @@
 from __future__ import annotations
 
 import argparse
+import contextlib
 import json
+import signal
 import sys
 import time
 from pathlib import Path
@@ -150,6 +152,31 @@ def _print_design(rec: dict) -> None:
         print(f"  warning: {w}")
 
 
+@contextlib.contextmanager
+def _graceful_interrupt():
+    """The first Ctrl-C (SIGINT) asks the search to stop after its current batch, so no storage
+    write is cut in half; a second one interrupts at once."""
+    flag = {"stop": False}
+    previous = signal.getsignal(signal.SIGINT)
+
+    def handler(signum, frame):
+        if flag["stop"]:
+            raise KeyboardInterrupt
+        flag["stop"] = True
+        print("\nsinkopt: stopping after this batch (Ctrl-C again to stop at once)",
+              file=sys.stderr)
+
+    try:
+        signal.signal(signal.SIGINT, handler)
+    except ValueError:  # not the main thread: keep the default behaviour
+        yield lambda: False
+        return
+    try:
+        yield lambda: flag["stop"]
+    finally:
+        signal.signal(signal.SIGINT, previous)
+
+
 class _Progress:
     def __init__(self, total: int, enabled: bool):
         self.bar = None
@@ -208,9 +235,11 @@ def cmd_run(args) -> int:
                               storage_url=args.storage, batch=args.batch, timeout=args.timeout,
                               progress=progress)
         else:
-            run_search(problem, study, n_trials, timeout=args.timeout,
-                       batch_size=args.batch or DEFAULT_BATCH, progress=progress,
-                       scheme=sampler, seed=seed)
+            with _graceful_interrupt() as stop:
+                run_search(problem, study, n_trials, timeout=args.timeout,
+                           batch_size=args.batch or DEFAULT_BATCH, progress=progress,
+                           scheme=sampler, seed=seed, should_stop=stop)
+            interrupted = stop()
     except KeyboardInterrupt:
         interrupted = True
     finally:
