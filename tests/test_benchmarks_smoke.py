@@ -31,3 +31,20 @@ def test_throughput_smoke():
         assert errors["compared"] >= 40, spreading  # designs with an operating point compared
         assert errors["flow rel"] <= throughput.RTOL_FLOW
     assert out["peak_rss_mib"] < throughput.PEAK_RSS_LIMIT_MiB
+
+
+def test_search_quality_smoke(capsys):
+    """The search-quality benchmark end to end on tiny budgets: tables printed, fractions sane."""
+    pytest.importorskip("moocore")
+    import re
+
+    search_quality = _load("search_quality")
+    code = search_quality.main(["--studies", "demo_inverter", "--schemes", "tpe-refine", "random",
+                                "--seeds", "1", "--budgets", "16", "32", "--sweep", "11",
+                                "--times", "5"])
+    out = capsys.readouterr().out
+    assert code == 0
+    rows = re.findall(r"^\| (tpe-refine|random) \| ([0-9.]+) \| ([0-9.]+) \|", out, re.M)
+    assert len(rows) == 2
+    for _, a, b in rows:
+        assert 0.0 <= float(a) <= float(b) <= 1.0 + 1e-12  # HV can only grow with evaluations
