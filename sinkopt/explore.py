@@ -183,21 +183,22 @@ class FrontRefiner:
             self.told.append(np.atleast_2d(objectives_min))
 
     def propose(self, k: int) -> list[dict[str, Any]]:
-        """Up to k archive designs not yet told, spread out in normalised objective space."""
+        """Up to k archive designs not yet told, spread out in normalised objective space
+        (farthest-point selection against everything told so far)."""
         if k <= 0 or not len(self.x):
             return []
-        told = np.vstack(self.told) if self.told else np.empty((0, self.f.shape[1]))
+        from scipy.spatial import cKDTree
+
         lo, hi = self.f.min(axis=0), self.f.max(axis=0)
         span = np.where(hi > lo, hi - lo, 1.0)
         fz = (self.f - lo) / span
-        tz = (told - lo) / span
-        if len(tz):
-            d = np.min(((fz[:, None, :] - tz[None, :, :]) ** 2).sum(-1), axis=1)
+        chosen: list[int] = []
+        if self.told:
+            tz = (np.vstack(self.told) - lo) / span
+            d = cKDTree(tz).query(fz, k=1)[0] ** 2
         else:
             # Start from the extremes of each objective, then fill in between.
             d = np.full(len(fz), np.inf)
-        chosen: list[int] = []
-        if not len(tz):
             for j in range(fz.shape[1]):
                 i = int(np.argmin(fz[:, j]))
                 if i not in chosen and len(chosen) < k:

@@ -34,7 +34,11 @@ log = logging.getLogger(__name__)
 #: Share of each batch filled from the refined archive under ``tpe-refine``; TPE proposes the rest.
 REFINE_SHARE = 0.75
 #: Refinement may take at most this share of the search's wall time (after its first rounds).
-REFINE_TIME_SHARE = 0.5
+REFINE_TIME_SHARE = 0.4
+#: Under ``tpe-refine``, TPE's proposals may take at most this share of the wall time: its cost
+#: per trial grows with the Pareto set it must split (0.3 s at 1000 trials, optimizer.md §3),
+#: and the refined archive then fills the batch instead.
+SAMPLER_TIME_SHARE = 0.25
 STUDY_JOURNAL = "study.journal"
 #: Trials asked before the batch is evaluated and told. TPE's constant liar keeps a batch spread
 #: out; batches make TPE ~3x cheaper per trial (optimizer.md §4).
@@ -168,10 +172,14 @@ def fail_stale_trials(study: optuna.Study, max_age_s: float | None = None,
             # Only the process whose FAIL went through gets here (the storage refuses to
             # finish a trial twice), so each stale trial is queued again at most once; a trial
             # that already went stale ``max_retries`` times (it may be what kills workers) is not.
+            # The list may predate parameters drawn just before the FAIL: queue the final ones.
+            params = next((f.params for f in study.get_trials(deepcopy=False,
+                                                              states=(TrialState.FAIL,))
+                           if f.number == t.number), t.params)
             retries = int(t.user_attrs.get("retries", 0))
-            if t.params and retries < max_retries:
-                study.enqueue_trial(t.params, user_attrs={"retry_of": t.number,
-                                                          "retries": retries + 1})
+            if params and retries < max_retries:
+                study.enqueue_trial(params, user_attrs={"retry_of": t.number,
+                                                        "retries": retries + 1})
             n += 1
     return n
 
@@ -186,16 +194,32 @@ class SearchProgress:
     elapsed: float
 
 
-def _tell(study: optuna.Study, trials, result: BatchResult, problem: Problem) -> None:
-    names = list(result.constraints)
-    cons = np.column_stack([result.constraints[k] for k in names]) if names else None
+def _trial_attrs(result: BatchResult, i: int) -> dict:
+    return {"worst_margin_K": float(np.nan_to_num(result.evaluation.worst_margin[i], nan=-1e6)),
+            "feasible": bool(result.feasible[i])}
+
+
+def _tell(study: optuna.Study, trials, result: BatchResult, offset: int = 0) -> None:
+    """Set every constraint and tell each asked trial its objectives (rows offset + i)."""
     for i, trial in enumerate(trials):
-        for j, name in enumerate(names):
-            trial.set_constraint(name, float(cons[i, j]))
-        trial.set_user_attr("worst_margin_K", float(np.nan_to_num(
-            result.evaluation.worst_margin[i], nan=-1e6)))
-        trial.set_user_attr("feasible", bool(result.feasible[i]))
-        study.tell(trial, [float(v) for v in result.objectives[i]])
+        row = offset + i
+        for name, values in result.constraints.items():
+            trial.set_constraint(name, float(values[row]))
+        for key, value in _trial_attrs(result, row).items():
+            trial.set_user_attr(key, value)
+        study.tell(trial, [float(v) for v in result.objectives[row]])
+
+
+def _add_finished(study: optuna.Study, params: list[dict], result: BatchResult,
+                  space: dict[str, BaseDistribution], worker: str) -> None:
+    """Add designs evaluated outside the sampler as COMPLETE trials, constraints included."""
+    for i, p in enumerate(params):
+        attrs = {**_trial_attrs(result, i), "worker": worker, "proposed_by": "refine"}
+        study.add_trial(optuna.trial.create_trial(
+            params=p, distributions={k: space[k] for k in p},
+            values=[float(v) for v in result.objectives[i]],
+            constraints={k: float(v[i]) for k, v in result.constraints.items()},
+            user_attrs=attrs))
 
 
 def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: float | None = None,
@@ -223,6 +247,7 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
     scheme = scheme or problem.sampler
     refiner = None
     refine_time = 0.0
+    sampler_time = 0.0
     if scheme == "tpe-refine" and space:
         from sinkopt.explore import FrontRefiner
 
@@ -268,16 +293,26 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
                 t0 = time.monotonic()
                 refiner.refine()
                 refine_time += time.monotonic() - t0
-            for params in refiner.propose(int(round(REFINE_SHARE * batch))):
-                study.enqueue_trial(params, user_attrs={"proposed_by": "refine"})
+            share = REFINE_SHARE
+            if added and sampler_time > SAMPLER_TIME_SHARE * (time.monotonic() - start):
+                share = 1.0
+            proposals = refiner.propose(int(round(share * batch)))
+        else:
+            proposals = []
         trials = []
         try:
-            for _ in range(batch):
+            t_ask = time.monotonic()
+            for _ in range(batch - len(proposals)):
                 t = study.ask(space)
                 t.set_user_attr("worker", worker)
                 trials.append(t)
-            result = evaluate_params(problem, [t.params for t in trials])
-            _tell(study, trials, result, problem)
+            sampler_time += time.monotonic() - t_ask
+            result = evaluate_params(problem, proposals + [t.params for t in trials])
+            k = len(proposals)
+            # Refined designs are already evaluated: they enter the study as finished trials
+            # (no sampler call, never RUNNING); the sampler's own proposals are told.
+            _add_finished(study, proposals, result, space, worker)
+            _tell(study, trials, result, offset=k)
             if refiner is not None:
                 refiner.mark_told(to_minimization(result.objectives[result.feasible],
                                                   refiner.directions))
