@@ -7,6 +7,7 @@ Parameter dictionaries use the search variables' names and units (``width_mm``, 
 """
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass, field
 from functools import cached_property
 from typing import Any, Sequence
@@ -14,7 +15,8 @@ from typing import Any, Sequence
 import numpy as np
 
 from sinkopt.design import ModelOptions, SinkGeometry
-from sinkopt.fans import FanArray, solve_operating_point
+from sinkopt.fans import FanArray
+from sinkopt.fans.operating_point import solve_operating_points
 from sinkopt.model import Evaluation, evaluate, inlet_air
 from sinkopt.physics import heatsink as hs
 from sinkopt.physics.bypass import flow_fraction_lossless_bypass
@@ -27,6 +29,41 @@ __all__ = ["BatchResult", "evaluate_params", "fan_choices", "fan_label", "full_p
 #: operating point, a geometry that cannot exist); Optuna rejects NaN and such designs are marked
 #: infeasible anyway.
 PENALTY = 1e6
+
+#: Batches of at least this many designs switch the C allocator to keep freed memory
+#: (:func:`_tune_allocator`); smaller ones make no temporaries large enough to matter.
+TUNE_ALLOCATOR_MIN_DESIGNS = 10_000
+_allocator_tuned = False
+
+
+def _tune_allocator() -> None:
+    """Once per process (glibc only): let freed heap memory stay in the process.
+
+    A batch of 50,000 designs makes thousands of numpy temporaries of 0.4-2 MB. By default glibc
+    serves such sizes from fresh mmap'd pages or trims the top of the heap after the frees, so
+    nearly every temporary is page-faulted in again: measured as ~1/3 of the CPU time of
+    :func:`evaluate_params` (system time, ~15k page faults per 50k designs). With
+    ``M_MMAP_THRESHOLD`` 32 MiB and ``M_TRIM_THRESHOLD`` 256 MiB (``mallopt(3)``) the memory
+    is reused instead; the cost is that up to 256 MiB of freed heap is kept by the process.
+    Process-wide; set the environment variable ``SINKOPT_MALLOC_TUNING=0`` to leave the
+    allocator alone.
+    """
+    global _allocator_tuned
+    if _allocator_tuned:
+        return
+    _allocator_tuned = True
+    if os.environ.get("SINKOPT_MALLOC_TUNING", "1") == "0":
+        return
+    try:
+        import ctypes
+
+        libc = ctypes.CDLL(None)
+        libc.gnu_get_libc_version  # glibc only  # noqa: B018
+        m_trim_threshold, m_mmap_threshold = -1, -3  # <malloc.h>
+        libc.mallopt(m_mmap_threshold, 32 << 20)
+        libc.mallopt(m_trim_threshold, 256 << 20)
+    except (OSError, AttributeError, TypeError):
+        pass
 
 
 def fan_label(option: FanOption, count: int) -> str:
@@ -182,18 +219,29 @@ class BatchResult:
 def _geometry(problem: Problem, cols: dict[str, np.ndarray]) -> SinkGeometry:
     values = {}
     for name, (_, factor) in GEOMETRY_VARIABLES.items():
-        values[name] = cols[name].astype(float) * factor
-    return SinkGeometry.of(width=values["width_mm"], length=values["length_mm"],
-                           fin_height=values["fin_height_mm"],
-                           fin_thickness=values["fin_thickness_mm"],
-                           n_fins=np.round(values["n_fins"]),
-                           base_thickness=values["base_thickness_mm"])
+        values[name] = np.asarray(cols[name], dtype=float) * factor
+    n = len(values["width_mm"])
+    if any(v.shape != (n,) for v in values.values()):
+        return SinkGeometry.of(width=values["width_mm"], length=values["length_mm"],
+                               fin_height=values["fin_height_mm"],
+                               fin_thickness=values["fin_thickness_mm"],
+                               n_fins=np.round(values["n_fins"]),
+                               base_thickness=values["base_thickness_mm"])
+    return SinkGeometry(width=values["width_mm"], length=values["length_mm"],
+                        fin_height=values["fin_height_mm"],
+                        fin_thickness=values["fin_thickness_mm"],
+                        n_fins=np.round(values["n_fins"]),
+                        base_thickness=values["base_thickness_mm"])
 
 
-def _stack_choice(problem: Problem, cols, n: int) -> np.ndarray:
+def _stack_choice(problem: Problem, cols, n: int) -> np.ndarray | None:
+    """(n, s) index of each device's mounting stack; None: the first stack everywhere."""
+    keys = [f"mount_{d.name}" for d in problem.devices]
+    if not any(k in cols for k in keys):
+        return None
     out = np.zeros((n, len(problem.devices)), dtype=int)
     for j, d in enumerate(problem.devices):
-        key = f"mount_{d.name}"
+        key = keys[j]
         if key in cols:
             names = np.array([s.name for s in d.stacks], dtype=object)
             chosen = cols[key].astype(object)
@@ -202,7 +250,63 @@ def _stack_choice(problem: Problem, cols, n: int) -> np.ndarray:
     return out
 
 
-def _solve_fans(problem, cols, g, air, options, valid, failed=0):
+def _fan_codes(problem: Problem, cols, n: int) -> tuple[list[str], np.ndarray]:
+    """The fan labels the problem offers (sorted) and each design's index into them.
+
+    Raises KeyError for a label that is not one of them."""
+    names = sorted(fan_choices(problem))
+    labels = np.asarray(cols["fan"])
+    if n == 0:
+        return names, np.zeros(0, dtype=np.intp)
+    if labels.dtype.kind == "U":
+        table = np.array(names)
+        code = np.minimum(np.searchsorted(table, labels), len(names) - 1)
+        bad = table[code] != labels
+        if bad.any():
+            raise KeyError(str(labels[np.argmax(bad)]))
+        return names, code
+    lookup = {k: i for i, k in enumerate(names)}
+    try:
+        code = np.fromiter(map(lookup.__getitem__, labels.tolist()), dtype=np.intp, count=n)
+    except KeyError:
+        code = np.fromiter((lookup[str(v)] for v in labels.tolist()), dtype=np.intp, count=n)
+    return names, code
+
+
+def _system_dp_function(problem: Problem, g: SinkGeometry, air, options: ModelOptions):
+    """``dp(Q, index)`` of :func:`solve_operating_points`: :func:`system_pressure_drop` of the
+    sinks ``g`` (designs ``index`` of them, or all) with the geometry-only work done once."""
+    sink_dp = hs.sink_pressure_drop_function(g.width, g.length, g.fin_height, g.fin_thickness,
+                                             g.n_fins, air, options.hydraulic_diameter,
+                                             options.exit_loss)
+    a = problem.air
+    extra = bool((a.extra_loss_coefficient and a.extra_loss_area_m2)
+                 or a.extra_impedance is not None)
+    if a.ducted and not extra:
+        return sink_dp
+    density = air.density
+    taken: list = [None, None]
+
+    def sub(index):
+        if index is None:
+            return g
+        if taken[0] is not index:
+            taken[0], taken[1] = index, g.take(index)
+        return taken[1]
+
+    def system_dp(q, index):
+        if a.ducted:
+            q_fins = q
+        else:
+            q_fins = q * flow_fraction_lossless_bypass(lambda qf: sink_dp(qf, index), sub(index),
+                                                       q, a.duct_area_m2, density)
+        dp = sink_dp(q_fins, index)
+        return dp + _impedance_dp(problem, q, density) if extra else dp
+
+    return system_dp
+
+
+def _solve_fans(problem, cols, g, air, options, valid, failed=0, fan_codes=None):
     n = len(g)
     flow = np.full(n, np.nan)
     dp = np.full(n, np.nan)
@@ -210,28 +314,50 @@ def _solve_fans(problem, cols, g, air, options, valid, failed=0):
     noise = np.full(n, np.nan)
     speed = np.full(n, np.nan)
     stall = np.zeros(n, dtype=bool)
-    labels = cols["fan"].astype(str)
+    names, code = _fan_codes(problem, cols, n) if fan_codes is None else fan_codes
     choices = fan_choices(problem)
-    speed_fraction = (cols["fan_speed"].astype(float) if "fan_speed" in cols
-                      else np.zeros(n))
-    for label in np.unique(labels):
-        option, count = choices[str(label)]
-        idx = np.flatnonzero((labels == label) & valid)
-        if idx.size == 0 or failed >= count:
-            continue
-        sub = g.take(idx)
-        fraction = speed_fraction[idx]
-        s = option.speed_min + fraction * (option.speed_max - option.speed_min)
-        arr = FanArray(option.curve, count=count, arrangement=option.arrangement, failed=failed)
-        extra = {} if option.efficiency is None else {"efficiency": option.efficiency}
-        op = solve_operating_point(
-            arr, lambda q: system_pressure_drop(problem, sub, q, air, options)[0],
-            speed_ratio=s, air_density=np.full(idx.size, float(air.density)), n=idx.size,
-            **extra)
-        flow[idx], dp[idx] = op.flow_m3_s, op.pressure_Pa
-        power[idx], noise[idx], speed[idx] = op.electrical_power_W, op.noise_dBA, s
-        stall[idx] = op.in_stall
-    return flow, dp, power, noise, speed, stall, labels.tolist()
+    options_counts = [choices[k] for k in names]
+    # groups that can run with `failed` fans stopped, renumbered for the solver
+    usable = [i for i, (_, count) in enumerate(options_counts) if failed < count]
+    renumber = np.full(len(names), -1, dtype=np.intp)
+    renumber[usable] = np.arange(len(usable))
+    group = renumber[code]
+    sel = np.flatnonzero(valid & (group >= 0))
+    if sel.size:
+        arrays, efficiency = [], []
+        lo = np.empty(len(usable))
+        span = np.empty(len(usable))
+        for j, i in enumerate(usable):
+            option, count = options_counts[i]
+            arrays.append(FanArray(option.curve, count=count, arrangement=option.arrangement,
+                                   failed=failed))
+            efficiency.append(option.efficiency)
+            lo[j] = option.speed_min
+            span[j] = option.speed_max - option.speed_min
+        gsel = group[sel]
+        fraction = (np.asarray(cols["fan_speed"], dtype=float)[sel] if "fan_speed" in cols
+                    else np.zeros(sel.size))
+        s = lo[gsel] + fraction * span[gsel]
+        sub = g if sel.size == n else g.take(sel)
+        op = solve_operating_points(arrays, gsel, _system_dp_function(problem, sub, air, options),
+                                    speed_ratio=s, air_density=float(air.density),
+                                    efficiency=efficiency)
+        flow[sel], dp[sel] = op.flow_m3_s, op.pressure_Pa
+        power[sel], noise[sel], speed[sel] = op.electrical_power_W, op.noise_dBA, s
+        stall[sel] = op.in_stall
+    labels = np.array(names, dtype=object)[code].tolist()
+    return flow, dp, power, noise, speed, stall, labels, (names, code)
+
+
+def _fin_flow(problem, g, flow, air, options):
+    """Flow through the fins at total flows ``flow`` (NaN where NaN)."""
+    if problem.air.ducted:
+        return flow.copy()
+    flow_fins = np.full(len(g), np.nan)
+    ok = np.isfinite(flow)
+    if ok.any():
+        flow_fins[ok] = system_pressure_drop(problem, g.take(ok), flow[ok], air, options)[1]
+    return flow_fins
 
 
 def evaluate_params(problem: Problem, params, spreading: str | None = None) -> BatchResult:
@@ -239,6 +365,8 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None) -> B
     variable, the fast path for large batches); fixed variables may be left out."""
     cols = to_columns(problem, params)
     n = len(next(iter(cols.values())))
+    if n >= TUNE_ALLOCATOR_MIN_DESIGNS and not _allocator_tuned:
+        _tune_allocator()
     options = problem.options
     if spreading is not None:
         options = ModelOptions(**{**options.__dict__, "spreading": spreading})
@@ -247,19 +375,20 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None) -> B
     valid = (g.n_fins >= 2) & (g.n_fins * g.fin_thickness < g.width)
     # Designs that cannot exist are evaluated on a stand-in geometry (so no NaN leaks into the
     # batch) and then marked infeasible with penalty values.
-    safe = SinkGeometry.of(width=g.width, length=g.length, fin_height=g.fin_height,
-                           base_thickness=g.base_thickness,
-                           fin_thickness=np.where(valid, g.fin_thickness, g.width / (4 * g.n_fins + 4)),
-                           n_fins=np.where(g.n_fins >= 2, g.n_fins, 2))
+    if valid.all():
+        safe = g
+    else:
+        safe = SinkGeometry(width=g.width, length=g.length, fin_height=g.fin_height,
+                            fin_thickness=np.where(valid, g.fin_thickness,
+                                                   g.width / (4 * g.n_fins + 4)),
+                            n_fins=np.where(g.n_fins >= 2, g.n_fins, 2.0),
+                            base_thickness=g.base_thickness)
     air = inlet_air(problem.conditions)
     failed_margin = None
     if problem.air.uses_fans:
-        flow, dp, power, noise, speed, stall, labels = _solve_fans(problem, cols, safe, air,
-                                                                   options, valid)
-        flow_fins = np.full(n, np.nan)
-        ok = np.isfinite(flow)
-        if ok.any():
-            flow_fins[ok] = system_pressure_drop(problem, safe.take(ok), flow[ok], air, options)[1]
+        flow, dp, power, noise, speed, stall, labels, codes = _solve_fans(problem, cols, safe, air,
+                                                                          options, valid)
+        flow_fins = _fin_flow(problem, safe, flow, air, options)
     else:
         if problem.air.fixed_flow_m3_s is not None:
             flow = np.full(n, problem.air.fixed_flow_m3_s)
@@ -279,12 +408,9 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None) -> B
                       problem.conductivity, problem.density, problem.conditions, options,
                       stack_choice=mounts)
     if problem.air.uses_fans and problem.air.failed_fan_check:
-        f_flow, *_ = _solve_fans(problem, cols, safe, air, options, valid & ~no_air, failed=1)
-        f_fins = np.full(n, np.nan)
-        okf = np.isfinite(f_flow)
-        if okf.any():
-            f_fins[okf] = system_pressure_drop(problem, safe.take(okf), f_flow[okf], air,
-                                               options)[1]
+        f_flow, *_ = _solve_fans(problem, cols, safe, air, options, valid & ~no_air, failed=1,
+                                 fan_codes=codes)
+        f_fins = _fin_flow(problem, safe, f_flow, air, options)
         with np.errstate(invalid="ignore", divide="ignore"):
             failed_margin = evaluate(safe, f_fins, problem.devices, problem.conductivity,
                                      problem.density, problem.conditions, options,

@@ -41,9 +41,11 @@ from typing import Callable, Sequence
 
 from sinkopt.errors import InputError, SinkoptError
 
-__all__ = ["STORAGE_ENV", "redact_text", "storage_error", "derive_seed", "sampler_seed",
-           "worker_argv", "work", "WorkSummary", "run_local_workers", "WorkersOutcome",
-           "describe_exit", "sigterm_as_interrupt", "DEFAULT_STALE_AFTER_S", "CHECK_EVERY_S"]
+__all__ = ["STORAGE_ENV", "tag_new_trials", "redact_text", "redact_url_strict", "storage_error",
+           "derive_seed", "sampler_seed", "worker_argv", "work", "WorkSummary",
+           "run_local_workers", "WorkersOutcome", "describe_exit", "sigterm_as_interrupt",
+           "graceful_stop",
+           "DEFAULT_STALE_AFTER_S", "CHECK_EVERY_S"]
 
 log = logging.getLogger(__name__)
 
@@ -56,7 +58,7 @@ DEFAULT_STALE_AFTER_S = 120.0
 CHECK_EVERY_S = 2.0
 #: How long the parent waits for interrupted workers to fail their batch and exit.
 INTERRUPT_GRACE_S = 15.0
-#: A worker gives up after this many batches lost to trials failed under it in a row.
+#: A worker gives up after this many batches lost to trials failed under it.
 MAX_LOST_BATCHES = 50
 
 
@@ -219,6 +221,31 @@ def sigterm_as_interrupt():
         signal.signal(signal.SIGTERM, previous)
 
 
+@contextlib.contextmanager
+def graceful_stop():
+    """In a worker: the first SIGINT or SIGTERM asks it to stop after its current batch (no
+    storage write is cut short, no trial is failed); a second one interrupts at once (the batch
+    is failed). Yields a function telling whether a stop was asked."""
+    import threading
+
+    flag = {"stop": False}
+    if threading.current_thread() is not threading.main_thread():
+        yield lambda: flag["stop"]
+        return
+
+    def handler(signum, frame):  # noqa: ARG001
+        if flag["stop"]:
+            raise KeyboardInterrupt
+        flag["stop"] = True
+
+    previous = {s: signal.signal(s, handler) for s in (signal.SIGINT, signal.SIGTERM)}
+    try:
+        yield lambda: flag["stop"]
+    finally:
+        for s, h in previous.items():
+            signal.signal(s, h)
+
+
 def describe_exit(code: int | None) -> str:
     """``'exit code 2'``, ``'killed by SIGKILL'``, ``'still running'``.
 
@@ -237,6 +264,56 @@ def describe_exit(code: int | None) -> str:
     return f"exit code {code}"
 
 
+# --------------------------------------------------------------------------- trial ownership
+
+def tag_new_trials(storage, tag: str) -> None:
+    """Make every trial this process starts carry ``user_attrs["worker"] = tag`` from its very
+    first moment.
+
+    :func:`sinkopt.search.run_search` tags a trial right after ``study.ask``, but ``ask`` runs
+    the sampler after it has created the trial, so a worker killed while sampling (for TPE most
+    of its time) would leave an untagged RUNNING trial that only the age check can recover. Here
+    the storage instance of a worker creates its trials with the tag (Optuna's trial template,
+    one write) and tags a queued trial in the write right after taking it from the queue.
+    Hooks the instance only; storages without these methods are left as they are.
+    """
+    import optuna
+    from optuna.trial import TrialState
+
+    def with_tag(template):
+        if template is None:
+            return optuna.trial.create_trial(state=TrialState.RUNNING,
+                                             user_attrs={"worker": tag})
+        if template.state == TrialState.RUNNING and "worker" not in template.user_attrs:
+            template = optuna.trial.create_trial(
+                state=template.state, params=template.params,
+                distributions=template.distributions,
+                user_attrs={**template.user_attrs, "worker": tag},
+                system_attrs=template.system_attrs)
+        return template
+
+    # RDBStorage (behind Optuna's cache) creates through _create_new_trial, the journal storage
+    # through create_new_trial.
+    for name in ("create_new_trial", "_create_new_trial"):
+        original = getattr(storage, name, None)
+        if original is None:
+            continue
+
+        def create(study_id, template_trial=None, _original=original):
+            return _original(study_id, with_tag(template_trial))
+
+        setattr(storage, name, create)
+    set_state = getattr(storage, "set_trial_state_values", None)
+    if set_state is not None:
+        def set_trial_state_values(trial_id, state, values=None, _original=set_state):
+            taken = _original(trial_id, state, values)
+            if taken and state == TrialState.RUNNING:  # this process took a queued trial
+                storage.set_trial_user_attr(trial_id, "worker", tag)
+            return taken
+
+        storage.set_trial_state_values = set_trial_state_values
+
+
 # --------------------------------------------------------------------------- the worker loop
 
 @dataclass
@@ -246,6 +323,7 @@ class WorkSummary:
     stale_failed: int = 0  #: stale trials of other workers this worker failed and queued again
     study_complete: int = 0  #: COMPLETE trials in the study when the worker stopped
     timed_out: bool = False
+    stopped: bool = False  #: stopped early on request (should_stop)
 
 
 def _is_conflict(exc: BaseException) -> bool:
@@ -265,15 +343,17 @@ def _count_complete(study) -> int:
 
 def work(problem, study, n_trials: int, *, batch_size: int | None = None,
          timeout: float | None = None, stale_after_s: float | None = DEFAULT_STALE_AFTER_S,
-         check_every_s: float = CHECK_EVERY_S) -> WorkSummary:
+         check_every_s: float = CHECK_EVERY_S, scheme: str | None = None,
+         seed: int | None = None, should_stop: Callable[[], bool] | None = None) -> WorkSummary:
     """Work on ``study`` until it holds ``n_trials`` COMPLETE trials or ``timeout`` passes.
 
     Batches of :func:`sinkopt.search.run_search`; between batches, every ``check_every_s``
     seconds, stale trials are failed and queued again. A batch hit by a conflict (one of its
     trials was failed as stale by another process) is dropped and the loop goes on.
-    KeyboardInterrupt propagates after the current batch is failed.
+    ``should_stop`` is polled between batches (a graceful stop); KeyboardInterrupt propagates
+    after the current batch is failed.
     """
-    from sinkopt.search import DEFAULT_BATCH, _worker_id, fail_stale_trials, run_search
+    from sinkopt.search import _worker_id, fail_stale_trials
 
     me = _worker_id()
     summary = WorkSummary()
@@ -287,28 +367,17 @@ def work(problem, study, n_trials: int, *, batch_size: int | None = None,
             summary.stale_failed += fail_stale_trials(study, stale_after_s)
 
     summary.stale_failed += fail_stale_trials(study, stale_after_s)
-    lost_in_a_row = 0
-    while True:
-        left = None if timeout is None else timeout - (time.monotonic() - start)
-        if left is not None and left <= 0:
-            summary.timed_out = True
-            break
-        try:
-            run_search(problem, study, n_trials, timeout=left,
-                       batch_size=batch_size or DEFAULT_BATCH, progress=check,
-                       stop_at_total=True, stale_after_s=stale_after_s)
-            break
-        except Exception as exc:  # noqa: BLE001 - only conflicts are retried
-            if not _is_conflict(exc):
-                raise
-            summary.lost_batches += 1
-            lost_in_a_row += 1
-            log.warning("worker %s: a trial of its batch was failed by another worker as stale "
-                        "(%s); batch dropped", me, exc)
-            if lost_in_a_row >= MAX_LOST_BATCHES:
-                raise SinkoptError(f"{lost_in_a_row} batches in a row were failed under this "
-                                   "worker by others: is --stale-after shorter than a batch?")
-            continue
+    try:
+        _work_loop(problem, study, n_trials, summary, me, start, check, batch_size=batch_size,
+                   timeout=timeout, stale_after_s=stale_after_s, scheme=scheme, seed=seed,
+                   should_stop=should_stop)
+    except BaseException:
+        # run_search fails the trials of its batch, but not one that ask() had created when the
+        # interrupt came (ask samples after creating the trial): fail every trial of this
+        # process that is still RUNNING, so none is left for the others' age check.
+        with contextlib.suppress(Exception):
+            _fail_own_running(study, me)
+        raise
     if timeout is not None and time.monotonic() - start >= timeout:
         summary.timed_out = True
     # Last sweep: trials of a worker that died near the end must not stay RUNNING.
@@ -321,6 +390,51 @@ def work(problem, study, n_trials: int, *, batch_size: int | None = None,
         if t.user_attrs.get("worker") == me:
             summary.told += 1
     return summary
+
+
+def _fail_own_running(study, me: str) -> int:
+    from optuna.trial import TrialState
+
+    n = 0
+    for t in study.get_trials(deepcopy=False, states=(TrialState.RUNNING,)):
+        if t.user_attrs.get("worker") == me:
+            with contextlib.suppress(Exception):
+                study.tell(t.number, state=TrialState.FAIL)
+                n += 1
+    return n
+
+
+def _work_loop(problem, study, n_trials, summary, me, start, check, *, batch_size, timeout,
+               stale_after_s, scheme, seed, should_stop) -> None:
+    from sinkopt.search import DEFAULT_BATCH, run_search
+
+    lost = 0
+    while True:
+        left = None if timeout is None else timeout - (time.monotonic() - start)
+        if left is not None and left <= 0:
+            summary.timed_out = True
+            break
+        if should_stop is not None and should_stop():
+            summary.stopped = True
+            break
+        try:
+            run_search(problem, study, n_trials, timeout=left,
+                       batch_size=batch_size or DEFAULT_BATCH, progress=check,
+                       stop_at_total=True, stale_after_s=stale_after_s, scheme=scheme,
+                       seed=seed, should_stop=should_stop)
+            summary.stopped = should_stop is not None and should_stop()
+            break
+        except Exception as exc:  # noqa: BLE001 - only conflicts are retried
+            if not _is_conflict(exc):
+                raise
+            summary.lost_batches += 1
+            lost += 1
+            log.warning("worker %s: a trial of its batch was failed by another worker as stale "
+                        "(%s); batch dropped", me, exc)
+            if lost >= MAX_LOST_BATCHES:
+                raise SinkoptError(f"{lost} batches were failed under this worker by others: "
+                                   "is --stale-after shorter than a batch?")
+            continue
 
 
 # --------------------------------------------------------------------------- local workers
@@ -430,10 +544,15 @@ def run_local_workers(problem, study, study_path: Path, *, n_workers: int, n_tri
         except BaseException:
             _stop(procs, INTERRUPT_GRACE_S)
             with contextlib.suppress(Exception):
-                outcome.stale_failed += fail_stale_trials(study, None)
+                outcome.stale_failed += fail_stale_trials(study, None,
+                                                          exclusive=storage_url is None)
             raise
     outcome.exit_codes = [p.returncode for p in procs]
-    outcome.stale_failed += fail_stale_trials(study, stale_after_s)
+    # Every local worker is gone. With the results folder's journal no one else works on the
+    # study, so whatever is still RUNNING is stale (even a trial a worker was killed before it
+    # could tag); with a shared database, only trials of dead local processes or old ones are.
+    outcome.stale_failed += fail_stale_trials(study, stale_after_s,
+                                              exclusive=storage_url is None)
     if outcome.exit_codes and all(c > 0 for c in outcome.exit_codes):
         raise SinkoptError("every worker failed (" + ", ".join(
             describe_exit(c) for c in outcome.exit_codes) + "); see their messages above")
@@ -445,5 +564,6 @@ def run_local_workers(problem, study, study_path: Path, *, n_workers: int, n_tri
         with sigterm_as_interrupt():
             outcome.finished_here = run_search(problem, study, n_trials, timeout=left,
                                                batch_size=batch or DEFAULT_BATCH,
-                                               progress=progress, stale_after_s=stale_after_s)
+                                               progress=progress, stale_after_s=stale_after_s,
+                                               scheme=sampler, seed=seed)
     return outcome

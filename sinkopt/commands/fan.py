@@ -105,6 +105,12 @@ def format_curve(curve) -> str:
     facts.append(f"curve at air density {curve.air_density_kg_m3:g} kg/m3")
     out.append("  " + ", ".join(facts))
     q, p = curve.flow_m3_s, curve.pressure_Pa
+    from sinkopt.fans.curve_file import RECOMMENDED_POINTS
+
+    n_data = sum(1 for ln in (curve.lines or ()) if ln) or q.size
+    if n_data < RECOMMENDED_POINTS:
+        out.append(f"  note: only {n_data} data points; {RECOMMENDED_POINTS} or more are "
+                   "recommended for a faithful curve")
     out.append(f"  {q.size} points; flow {q[0]:.6g} to {q[-1]:.6g} m3/s ({q[0] / fq:.6g} to "
                f"{q[-1] / fq:.6g} {fu}); max pressure {p.max():.6g} Pa ({p.max() / fp:.6g} {pu})")
     if curve.has_stall_region:

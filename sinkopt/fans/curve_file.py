@@ -45,7 +45,7 @@ __all__ = ["FanCurveWarning", "load_fan_curve", "parse_fan_curve", "METADATA_KEY
 
 FORMAT_VERSION = "1"
 
-#: Fewer data points than this give a warning (3 is the hard minimum).
+#: Recommended number of data points (3 is the hard minimum); ``fan check`` notes fewer.
 RECOMMENDED_POINTS = 6
 
 #: An end point may be extended to its axis when it is off that axis by at most this fraction of
@@ -298,9 +298,6 @@ def parse_fan_curve(text: str, source: str = "<text>", *, extend_ends: bool = Tr
         raise InputError(f"only {len(lines)} data point(s); a fan curve needs at least 3 "
                          "(6 or more recommended)", _where(source, where), flow_name)
 
-    if len(lines) < RECOMMENDED_POINTS:
-        _warn(f"only {len(lines)} data points; {RECOMMENDED_POINTS} or more are recommended for "
-              "a faithful curve", source, lines[-1])
     fu, pu = cols["flow"][2], cols["pressure"][2]
     order = np.argsort(values["flow"], kind="stable")
     q = np.asarray(values["flow"])[order] * fu.factor

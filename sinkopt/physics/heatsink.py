@@ -169,10 +169,12 @@ def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins
     formulas as :func:`sink_hydraulics`, regrouped per design as
 
     .. math:: \Delta p_{lam} = \left(K_c + K_e + \frac{4L}{D_h}
-              \frac{\sqrt{3.44^2 D_h Re/L + (fRe)^2}}{Re}\right)\frac{\rho}{2A_c^2} Q^2,
+              \frac{\sqrt{3.44^2 D_h Re/L + (fRe)^2}}{Re}\right)\frac{\rho}{2A_c^2} Q^2
+              = a Q^2 + c Q \sqrt{d Q + (fRe)^2},
               \quad Re = \frac{\rho D_h}{\mu A_c} Q
 
-    (results equal to round-off, ~1e-15 relative).
+    with per-design constants a, c, d (results equal to round-off, ~1e-15 relative); the
+    turbulent blend is evaluated only where Re_Dh > 2300.
 
     Parameters
     ----------
@@ -182,8 +184,10 @@ def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins
     Returns
     -------
     callable
-        ``dp(flow)``: volume flow through the fins, shape (n,) or scalar [m^3/s] -> static
-        pressure drop [Pa], shape (n,).
+        ``dp(flow, index=None)``: volume flow through the fins, shape (n,) or scalar [m^3/s]
+        -> static pressure drop [Pa], shape (n,). With ``index`` (an int array) the flows are
+        those of the designs ``index`` only; the constants gathered for it are kept and reused
+        while the same index object is passed again (the fan solver's calls).
 
     Examples
     --------
@@ -205,20 +209,62 @@ def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins
           else geo.hydraulic_diameter_rectangular_channel(b, h))
     re_per_flow = air.density * dh / air.viscosity * inv_area
     fre = cv.fre_rectangular_duct_shah_london_1978(np.minimum(b, h) / np.maximum(b, h))
-    fre2 = fre * fre
     l_over_dh = length / dh
-    c_root = 3.44**2 / l_over_dh  # 3.44²/L⁺ = c_root·Re
-    c_friction = 4.0 * l_over_dh
     sigma = geo.open_area_ratio(width, n_fins, fin_thickness)
     k_minor = pd_.contraction_loss_culham_muzychka_2001(sigma) + pd_.EXIT_LOSS_MODELS[exit_loss](sigma)
     dyn_per_flow2 = 0.5 * air.density * inv_area * inv_area
+    # laminar: Δp = a Q² + c Q √(d Q + f²), with Re = r Q:
+    #   a = (K_c + K_e) ρ/(2A²), c = 4 (L/D_h) ρ/(2A²)/r, d = 3.44² r/(L/D_h), f = f·Re
+    quad = k_minor * dyn_per_flow2
+    root_mult = 4.0 * l_over_dh * dyn_per_flow2 / re_per_flow
+    root_lin = 3.44**2 / l_over_dh * re_per_flow
+    fre2 = fre * fre
+    # turbulent branch (Petukhov f): Δp_turb = (K_c + K_e + 4 f L/D_h) ρ/(2A²) Q² = (a + f m) Q²
+    # with m = 4 (L/D_h) ρ/(2A²)
+    turb_mult = 4.0 * l_over_dh * dyn_per_flow2
+    consts = np.broadcast_arrays(quad, root_mult, root_lin, fre2, re_per_flow, turb_mult)
+    scalar = consts[0].ndim == 0
+    cache: list = [None, None]  # the last index object and the constants gathered for it
+    re_start = cv.RE_TRANSITION_START
+    re_scale = 1.0 / (cv.RE_TRANSITION_END - cv.RE_TRANSITION_START)
 
-    def pressure_drop(flow):
+    def pressure_drop(flow, index=None):
         q = np.asarray(flow, dtype=float)
-        re = np.maximum(q * re_per_flow, 1e-12)
-        dynamic = dyn_per_flow2 * (q * q)
-        dp = (k_minor + c_friction * np.sqrt(c_root * re + fre2) / re) * dynamic
-        return _blend_turbulent(dp, re, k_minor, l_over_dh, dynamic)
+        if index is None or scalar:
+            c, design = consts, None
+        elif cache[0] is index:
+            c, design = cache[1], index
+        else:
+            c, design = [x[index] for x in consts[:5]] + [consts[5]], index
+            cache[0], cache[1] = index, c
+        a, cm, cl, f2, r, tm = c
+        q2 = q * q
+        dp = a * q2 + cm * q * np.sqrt(cl * q + f2)
+        re = q * r
+        if dp.ndim == 0:
+            if not re > re_start:
+                return dp[()]
+            return _blend_turbulent(dp, re, k_minor, l_over_dh, dyn_per_flow2 * q2)
+        if q.shape != dp.shape:
+            q2 = np.broadcast_to(q2, dp.shape)
+            re = np.broadcast_to(re, dp.shape)
+        i = np.flatnonzero(re > re_start)
+        if not i.size:
+            return dp
+        # _blend_turbulent on the designs with Re_Dh > 2300 only, with the constants above
+        j = i if (design is None or tm.ndim == 0) else design[i]
+        re_t = re[i]
+        lam = dp[i]
+        y = 0.790 * np.log(re_t) - 1.64
+        f_turb = 0.25 / (y * y)  # Petukhov: pressure_drop.friction_fanning_turbulent_smooth
+        turbulent = (a[i] if a.ndim else a) + f_turb * (tm[j] if tm.ndim else tm)
+        turbulent *= q2[i]
+        w = np.minimum((re_t - re_start) * re_scale, 1.0)  # Re > 2300: no lower clip needed
+        w = w * w * (3.0 - 2.0 * w)  # convection.transition_weight
+        lam2 = lam * lam
+        tu2 = turbulent * turbulent
+        dp[i] = (1.0 - w) * lam + w * (lam2 * lam2 * lam + tu2 * tu2 * turbulent) ** 0.2
+        return dp
 
     return pressure_drop
 
@@ -310,15 +356,38 @@ def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: Ai
           else geo.hydraulic_diameter_rectangular_channel(b, h_fin))
     re = velocity * dh / nu_kin
     w = cv.transition_weight(re)
-    re_t = np.maximum(re, cv.RE_TRANSITION_START)
-    h_turb = cv.nu_turbulent_gnielinski_1976(
-        re_t, pr, cv.friction_darcy_smooth_petukhov_1970(re_t)) * air.conductivity / dh
-    ua_t, eta_t = finned_conductance(h_turb)
-    g_turb = cv.effectiveness_isothermal_wall(ua_t / mcp) * mcp
-    conductance = (1.0 - w) * g_lam + w * (g_lam**5 + g_turb**5) ** 0.2
+
+    def turbulent(re, dh, a_base, n, a_fin, fin_length, k_s, t, mcp):
+        re_t = np.maximum(re, cv.RE_TRANSITION_START)
+        h_turb = cv.nu_turbulent_gnielinski_1976(
+            re_t, pr, cv.friction_darcy_smooth_petukhov_1970(re_t)) * air.conductivity / dh
+        eta = fn.fin_efficiency_straight_rectangular(fn.fin_parameter(h_turb, k_s, t) * fin_length)
+        ua_t = h_turb * (a_base + n * eta * a_fin)
+        return h_turb, eta, cv.effectiveness_isothermal_wall(ua_t / mcp) * mcp
+
+    def blend(w, lam, turb):
+        return (1.0 - w) * lam + w * turb
+
+    parts = (re, dh, a_base, n, a_fin, fin_length, k_s, t, mcp)
+    shape = np.broadcast_shapes(*(np.shape(x) for x in parts + (g_lam, h_lam, eta_lam, w)))
+    # w = 0 gives the laminar values exactly: the turbulent branch only elsewhere (and at NaN)
+    blended = ~(w <= 0)
+    if len(shape) == 1 and shape[0] > 64 and not blended.all():
+        i = np.flatnonzero(np.broadcast_to(blended, shape))
+        sub = [np.broadcast_to(x, shape)[i] for x in parts]
+        conductance, h_used, eta_f = (np.array(np.broadcast_to(x, shape), dtype=float)
+                                      for x in (g_lam, h_lam, eta_lam))
+        h_turb, eta_t, g_turb = turbulent(*sub)
+        wi, gl = np.broadcast_to(w, shape)[i], conductance[i]
+        conductance[i] = blend(wi, gl, (gl**5 + g_turb**5) ** 0.2)
+        h_used[i] = blend(wi, h_used[i], h_turb)
+        eta_f[i] = blend(wi, eta_f[i], eta_t)
+    else:
+        h_turb, eta_t, g_turb = turbulent(*parts)
+        conductance = blend(w, g_lam, (g_lam**5 + g_turb**5) ** 0.2)
+        h_used = blend(w, h_lam, h_turb)
+        eta_f = blend(w, eta_lam, eta_t)
     resistance = 1.0 / conductance
-    h_used = (1.0 - w) * h_lam + w * h_turb
-    eta_f = (1.0 - w) * eta_lam + w * eta_t
     a_total = a_base + n * a_fin
     eta_o = fn.surface_efficiency(eta_f, n * a_fin, a_total)
     r_conv = np.maximum(resistance - 0.5 / mcp, 0.5 * resistance)

@@ -11,7 +11,7 @@ from scipy.optimize import brentq
 
 from sinkopt.errors import InputError
 from sinkopt.fans import FanArray, FanCurve, load_fan_curve, solve_operating_point
-from sinkopt.fans.operating_point import DEFAULT_FAN_EFFICIENCY
+from sinkopt.fans.operating_point import DEFAULT_FAN_EFFICIENCY, solve_operating_points
 
 
 @pytest.fixture
@@ -340,3 +340,85 @@ def test_against_brentq_random_fans_with_stall_dip():
             assert op.flow_m3_s[i] == pytest.approx(q_ref, rel=1e-8), (case, i)
             assert op.in_stall[i] == (q_ref < fan.q_stall_limit_m3_s), (case, i)
         assert not op.no_intersection.any()
+
+
+_OP_FIELDS = ("flow_m3_s", "pressure_Pa", "air_power_W", "electrical_power_W", "noise_dBA",
+              "fan_flow_m3_s", "leak_flow_m3_s", "speed_ratio", "air_density_kg_m3")
+
+
+def _mixed_arrays():
+    """Every catalog fan (stall dips, power columns, rated powers) in parallel and series
+    arrays, with and without a stopped fan, plus the quadratic fan without noise or power."""
+    fans = [load_fan_curve(path) for path in sorted(CATALOG.glob("*.csv"))]
+    arrays = []
+    for i, fan in enumerate(fans):
+        arrays += [FanArray(fan), FanArray(fan, count=2), FanArray(fan, count=3, failed=1),
+                   FanArray(fan, count=2, arrangement="series", failed=i % 2),
+                   FanArray(fan, count=3, failed=1, shuttered=True)]
+    arrays.append(FanArray(quadratic_fan(40), count=2, arrangement="series"))
+    return arrays
+
+
+def test_multi_curve_solve_equals_per_group_solves():
+    # one vectorised pass over designs that use different fan arrays = one solve per array on
+    # its designs (a design's iterates depend on its own data only): equal to 1e-12
+    arrays = _mixed_arrays()
+    rng = np.random.default_rng(20261202)
+    n = 4000
+    group = rng.integers(0, len(arrays), n)
+    s = rng.uniform(0.4, 1.2, n)
+    s[::97] = 0.0  # cannot move air
+    rho = rng.uniform(0.9, 1.25, n)
+    expo = rng.uniform(1.0, 2.0, n)
+    # systems from very open to very restrictive: stable branch, stall region, no intersection
+    q_ref = np.array([a.curve.q_free_m3_s * (a.running if a.arrangement == "parallel" else 1)
+                      for a in arrays])[group] * s
+    p_ref = np.array([a.curve.p_max_Pa * (a.running if a.arrangement == "series" else 1)
+                      for a in arrays])[group] * s**2
+    k = p_ref / np.maximum(q_ref, 1e-9) ** expo * 10 ** rng.uniform(-1.5, 1.5, n)
+    efficiency = [None if i % 3 else 0.3 for i in range(len(arrays))]
+    calls = []
+
+    def system(q, index):
+        calls.append(None if index is None else index.size)
+        kk, ee = (k, expo) if index is None else (k[index], expo[index])
+        assert q.shape == kk.shape and np.all(np.isfinite(q)) and np.all(q >= 0)
+        return kk * q**ee
+
+    op = solve_operating_points(arrays, group, system, speed_ratio=s, air_density=rho,
+                                efficiency=efficiency)
+    assert len(calls) < 60  # vectorised calls, not one per design or per group
+    assert op.in_stall.sum() > 100 and op.no_intersection.sum() >= 41
+    assert (~op.no_intersection & ~op.in_stall).sum() > 1000
+    for j, arr in enumerate(arrays):
+        sel = np.flatnonzero(group == j)
+        ref = solve_operating_point(arr, lambda q: k[sel] * q ** expo[sel], speed_ratio=s[sel],
+                                    air_density=rho[sel],
+                                    efficiency=efficiency[j] or DEFAULT_FAN_EFFICIENCY)
+        np.testing.assert_array_equal(op.no_intersection[sel], ref.no_intersection)
+        np.testing.assert_array_equal(op.in_stall[sel], ref.in_stall)
+        for name in _OP_FIELDS:
+            np.testing.assert_allclose(getattr(op, name)[sel], getattr(ref, name), rtol=1e-12,
+                                       atol=0, equal_nan=True, err_msg=f"{j}: {name}")
+
+
+def test_multi_curve_solve_against_brentq_and_inputs():
+    fans = [quadratic_fan(40), _stall_fan()]
+    k = np.array([4e5, 4e5, 1e5, 2e6])
+    group = np.array([0, 1, 1, 0])
+    op = solve_operating_points(fans, group, lambda q, i: (k if i is None else k[i]) * q**2)
+    for i in range(4):
+        ref = PchipInterpolator(fans[group[i]].flow_m3_s, fans[group[i]].pressure_Pa)
+        grid = np.linspace(0, fans[group[i]].q_free_m3_s, 20001)
+        g = ref(grid) - k[i] * grid**2
+        j = np.nonzero((g[:-1] >= 0) & (g[1:] < 0))[0][-1]
+        q_ref = brentq(lambda Q: ref(Q) - k[i] * Q**2, grid[j], grid[j + 1], xtol=1e-15,
+                       rtol=1e-13)
+        assert op.flow_m3_s[i] == pytest.approx(q_ref, rel=1e-9), i
+    np.testing.assert_array_equal(op.air_density_kg_m3, [1.2, 1.2, 1.2, 1.2])
+    with pytest.raises(InputError, match="group_index"):
+        solve_operating_points(fans, [0, 2], lambda q, i: q)
+    with pytest.raises(InputError, match="efficiency"):
+        solve_operating_points(fans, [0, 1], lambda q, i: q, efficiency=[0.2])
+    with pytest.raises(InputError, match="speed_ratio"):
+        solve_operating_points(fans, [0, 1], lambda q, i: q, speed_ratio=np.ones(3))
