@@ -17,6 +17,7 @@ __all__ = [
     "GEOMETRY_VARIABLES",
     "OBJECTIVES",
     "Variable",
+    "fan_label",
     "FanOption",
     "AirSupply",
     "ProcessLimits",
@@ -68,6 +69,15 @@ class Variable:
         return self.fixed is not None
 
 
+def fan_label(key: str, count: int) -> str:
+    """The ``fan`` search choice for ``count`` fans of the curve file ``key``.
+
+    >>> fan_label("fan_a", 1), fan_label("fan_a", 2)
+    ('fan_a', 'fan_a x2')
+    """
+    return key if count == 1 else f"{key} x{count}"
+
+
 @dataclass(frozen=True)
 class FanOption:
     """A candidate fan (one curve file) with its allowed counts, arrangement and speed range."""
@@ -103,6 +113,10 @@ class AirSupply:
     @property
     def uses_fans(self) -> bool:
         return bool(self.fans)
+
+    def fan_choices(self) -> dict[str, tuple["FanOption", int]]:
+        """Every ``fan`` label, in order, with its fan option and count."""
+        return {fan_label(f.key, n): (f, n) for f in self.fans for n in f.counts}
 
 
 @dataclass(frozen=True)

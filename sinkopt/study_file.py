@@ -32,7 +32,7 @@ from sinkopt import catalogs
 from sinkopt.design import Conditions, Device, ModelOptions, MountingStack, SlabLayer, ViaLayer
 from sinkopt.errors import InputError
 from sinkopt.problem import (DEFAULT_SAMPLER, GEOMETRY_VARIABLES, OBJECTIVES, SAMPLERS, AirSupply,
-                             FanOption, Limits, Problem, ProcessLimits, Variable)
+                             FanOption, Limits, Problem, ProcessLimits, Variable, fan_label)
 from sinkopt.study_schema import (PROCESS_KEYS, PROCESS_PRESETS, Problems, Table, cross_check,
                                   item_path, join_path, read_impedance_curve, resolve_files, show,
                                   span)
@@ -83,18 +83,9 @@ _GEOMETRY_HINTS = {
 
 
 # ---- search-variable helpers -------------------------------------------------------------------
-def fan_label(key: str, count: int) -> str:
-    """The ``fan`` choice for ``count`` fans of file ``key``.
-
-    >>> fan_label("fan_a", 1), fan_label("fan_a", 2)
-    ('fan_a', 'fan_a x2')
-    """
-    return key if count == 1 else f"{key} x{count}"
-
-
 def fan_choices(air: AirSupply) -> dict[str, tuple[FanOption, int]]:
     """Every ``fan`` label of the problem, in order, with its fan and count."""
-    return {fan_label(f.key, n): (f, n) for f in air.fans for n in f.counts}
+    return air.fan_choices()
 
 
 def fan_speed_ratio(option: FanOption, fan_speed):

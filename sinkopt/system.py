@@ -22,7 +22,7 @@ from sinkopt.physics import heatsink as hs
 from sinkopt.physics.bypass import flow_fraction_lossless_bypass
 from sinkopt.problem import GEOMETRY_VARIABLES, OBJECTIVES, FanOption, Problem
 
-__all__ = ["BatchResult", "evaluate_params", "fan_choices", "fan_label", "full_params", "to_columns",
+__all__ = ["BatchResult", "evaluate_params", "fan_choices", "full_params", "to_columns",
            "PENALTY", "system_pressure_drop"]
 
 #: Finite stand-in for objectives and constraints of a design that cannot be evaluated (no fan
@@ -66,14 +66,9 @@ def _tune_allocator() -> None:
         pass
 
 
-def fan_label(option: FanOption, count: int) -> str:
-    """Categorical label of a fan choice: the file's key for one fan, ``"<key> x<N>"`` for N."""
-    return option.key if count == 1 else f"{option.key} x{count}"
-
-
 def fan_choices(problem: Problem) -> dict[str, tuple[FanOption, int]]:
     """Every fan label the search may pick, with its fan option and count."""
-    return {fan_label(f, c): (f, c) for f in problem.air.fans for c in f.counts}
+    return problem.air.fan_choices()
 
 
 def full_params(problem: Problem, params: dict[str, Any]) -> dict[str, Any]:
