@@ -133,7 +133,7 @@ def main(argv=None) -> int:
     ap.add_argument("--budgets", nargs="+", type=int, default=[200, 500, 1000])
     ap.add_argument("--seeds", type=int, default=5)
     ap.add_argument("--sweep", type=int, default=18, help="log2 of the reference sweep size")
-    ap.add_argument("--times", nargs="+", type=float, default=[10.0, 30.0, 60.0],
+    ap.add_argument("--times", nargs="+", type=float, default=[1.0, 2.0, 5.0, 10.0, 30.0, 60.0],
                     help="wall-time checkpoints [s] for the HV-versus-time table")
     args = ap.parse_args(argv)
     budget = max(args.budgets)
