@@ -152,7 +152,7 @@ def fail_stale_trials(study: optuna.Study, max_age_s: float | None = None,
     A trial is stale when its worker ran on this host and that process is gone, or (when
     ``max_age_s`` is given) when it started longer ago than that, whatever its worker. With
     ``exclusive=True`` the caller is the only worker of the study (a plain ``sinkopt run``), so
-    every RUNNING trial is stale. The journal storage has no
+    a RUNNING trial without a worker tag is stale too. The journal storage has no
     heartbeat, so without this a killed run's trials would stay RUNNING forever.
     """
     host = socket.gethostname()
@@ -164,7 +164,9 @@ def fail_stale_trials(study: optuna.Study, max_age_s: float | None = None,
         dead = w_host == host and pid.isdigit() and not _pid_alive(int(pid))
         old = (max_age_s is not None and t.datetime_start is not None
                and now - t.datetime_start.timestamp() > max_age_s)
-        if dead or old or exclusive:
+        # The only worker of a study (a plain `sinkopt run`) also fails untagged trials: trials
+        # are tagged when created, so an untagged RUNNING one was cut off mid-creation.
+        if dead or old or (exclusive and not worker):
             try:
                 study.tell(t.number, state=TrialState.FAIL)
             except Exception:  # noqa: BLE001 - another worker may have finished it meanwhile
@@ -200,14 +202,21 @@ def _trial_attrs(result: BatchResult, i: int) -> dict:
 
 
 def _tell(study: optuna.Study, trials, result: BatchResult, offset: int = 0) -> None:
-    """Set every constraint and tell each asked trial its objectives (rows offset + i)."""
+    """Set every constraint and tell each asked trial its objectives (rows offset + i).
+
+    A trial that another worker has meanwhile failed as stale (its retry is already queued) is
+    skipped; the rest of the batch is still told.
+    """
     for i, trial in enumerate(trials):
         row = offset + i
-        for name, values in result.constraints.items():
-            trial.set_constraint(name, float(values[row]))
-        for key, value in _trial_attrs(result, row).items():
-            trial.set_user_attr(key, value)
-        study.tell(trial, [float(v) for v in result.objectives[row]])
+        try:
+            for name, values in result.constraints.items():
+                trial.set_constraint(name, float(values[row]))
+            for key, value in _trial_attrs(result, row).items():
+                trial.set_user_attr(key, value)
+            study.tell(trial, [float(v) for v in result.objectives[row]])
+        except optuna.exceptions.UpdateFinishedTrialError:
+            log.info("trial %d was finished by another worker; skipped", trial.number)
 
 
 def _add_finished(study: optuna.Study, params: list[dict], result: BatchResult,
