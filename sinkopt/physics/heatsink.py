@@ -126,7 +126,8 @@ def sink_hydraulics(width, length, fin_height, fin_thickness, n_fins, flow, air:
     dynamic = 0.5 * air.density * velocity**2
     dp = (kc + 4.0 * f_lam * length / dh + ke) * dynamic
     dp = _blend_turbulent(dp, re, kc + ke, length / dh, dynamic)
-    f_app = (dp / dynamic - kc - ke) * dh / (4.0 * length)
+    with np.errstate(divide="ignore", invalid="ignore"):  # zero flow: f_app undefined (NaN)
+        f_app = (dp / dynamic - kc - ke) * dh / (4.0 * length)
     return Hydraulics(b, velocity, dh, re, l_plus, f_app, kc, ke, dp)
 
 
