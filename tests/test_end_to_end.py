@@ -165,3 +165,20 @@ def test_notebook_api_reads_the_results_folder(demo_run):
     assert res.run_info["seed"] == 3
     with pytest.raises(FileNotFoundError):
         so.load_results(demo_run / "designs")
+
+
+def test_input_warnings_reach_run_json(tmp_path):
+    # A fan file with an exact duplicate point loads with a warning (docs/fan-curves.md); the run
+    # records it in run.json rather than losing it on the terminal.
+    fans = tmp_path / "fans"
+    fans.mkdir()
+    lines = (ROOT / "catalogs" / "fans" / "demo-axial-60.csv").read_text().splitlines()
+    last = lines[-1]
+    (fans / "dup.csv").write_text("\n".join(lines + [last]) + "\n")
+    study = tmp_path / "study.toml"
+    study.write_text(DEMO.read_text().replace("../catalogs/fans/*.csv", "fans/dup.csv"))
+    out = tmp_path / "out"
+    assert main(["run", str(study), "--out", str(out), "--trials", "16", "--seed", "1",
+                 "--no-progress", "--no-report"]) in (0, 3)
+    warnings = json.loads((out / "run.json").read_text())["warnings"]
+    assert any("duplicate" in w for w in warnings), warnings

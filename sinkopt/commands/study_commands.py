@@ -57,10 +57,21 @@ def register(sub) -> None:
     ev.set_defaults(func=cmd_evaluate)
 
 
-def _load(path: Path):
+def _load(path: Path, warnings_out: list[str] | None = None):
+    """Load a study; warnings raised while reading it (fan-curve files, ...) are printed and,
+    when ``warnings_out`` is given, collected for run.json."""
+    import warnings
+
     from sinkopt.study_file import load_study
 
-    return load_study(path)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        problem = load_study(path)
+    for w in caught:
+        print(f"sinkopt: warning: {w.message}", file=sys.stderr)
+        if warnings_out is not None:
+            warnings_out.append(str(w.message))
+    return problem
 
 
 def parse_set(problem, items: list[str]) -> dict:
@@ -209,7 +220,8 @@ def cmd_run(args) -> int:
     from sinkopt.results_io import run_info, write_results
     from sinkopt.search import DEFAULT_BATCH, fail_stale_trials, open_study, run_search, storage_for
 
-    problem = _load(args.study)
+    input_warnings: list[str] = []
+    problem = _load(args.study, input_warnings)
     out = args.out or problem.default_results_dir()
     out.mkdir(parents=True, exist_ok=True)
     n_trials = args.trials or problem.trials
@@ -247,7 +259,8 @@ def cmd_run(args) -> int:
     results = collect_results(problem, study)
     info = run_info(problem, seed=seed, sampler=sampler, n_trials=n_trials,
                     command=sys.argv, storage_url=args.storage,
-                    elapsed_s=time.monotonic() - start, states=results.states)
+                    elapsed_s=time.monotonic() - start, states=results.states,
+                    warnings=input_warnings)
     write_results(results, out, info)
     if not args.no_report:
         try:
