@@ -164,6 +164,7 @@ class Problem:
     seed: int | None = None
     sampler: str = DEFAULT_SAMPLER
     source: Path | None = None  #: the study file
+    description: str = ""
     inputs: tuple[Path, ...] = ()  #: every file read (study, fan curves, impedance curves)
 
     @property

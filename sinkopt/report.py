@@ -311,6 +311,7 @@ def _pareto_table(table: dict[str, Any]) -> str:
 def _inputs_html(inp: dict[str, Any]) -> str:
     parts = ["<h3>Conditions and sink</h3>", _kv([
         ["study", inp["name"]],
+        ["description", inp.get("description") or "–"],
         ["study file", inp["source"] or "–"],
         ["inlet air temperature (worst case)", f"{inp['ambient_C']:g} °C"],
         ["altitude", f"{inp['altitude_m']:g} m"],

@@ -590,6 +590,7 @@ def study_inputs_data(problem: Problem, info: dict[str, Any] | None) -> dict[str
     }
     return {
         "name": problem.name,
+        "description": problem.description,
         "source": str(problem.source) if problem.source else None,
         "ambient_C": c.ambient_C,
         "altitude_m": c.altitude_m,

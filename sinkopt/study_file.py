@@ -115,6 +115,7 @@ def _study(root: Table, default_name: str) -> dict:
     t = Table(data, "study", root.problems, _STUDY_KEYS)
     return {
         "name": t.text("name", default=default_name),
+        "description": t.text("description", default=""),
         "trials": t.integer("trials", default=300, minimum=1),
         "seed": t.integer("seed", default=None, minimum=0),
         "sampler": t.text("sampler", default=DEFAULT_SAMPLER, choices=SAMPLERS),
@@ -597,6 +598,7 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
         trials=study["trials"],
         seed=study["seed"],
         sampler=study["sampler"],
+        description=study["description"] or "",
         inputs=tuple(inputs),
     )
 
