@@ -14,16 +14,12 @@ import logging
 import sys
 
 from sinkopt import __version__
-from sinkopt.errors import InputError
+from sinkopt.errors import (EXIT_INFEASIBLE, EXIT_INPUT, EXIT_INTERNAL, EXIT_INTERRUPTED, EXIT_OK,
+                            InputError)
 
 __all__ = ["main", "build_parser", "EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "EXIT_INFEASIBLE",
            "EXIT_INTERRUPTED"]
 
-EXIT_OK = 0
-EXIT_INTERNAL = 1
-EXIT_INPUT = 2
-EXIT_INFEASIBLE = 3
-EXIT_INTERRUPTED = 130
 
 # Modules under sinkopt.commands that provide ``register(subparsers)``.
 COMMAND_MODULES = ("fan", "study_commands", "setup", "worker_command", "report_command")

@@ -5,7 +5,15 @@ print one clear message and exit 2 without a traceback.
 """
 from __future__ import annotations
 
-__all__ = ["SinkoptError", "InputError", "GeometryError"]
+__all__ = ["SinkoptError", "InputError", "GeometryError", "EXIT_OK", "EXIT_INTERNAL",
+           "EXIT_INPUT", "EXIT_INFEASIBLE", "EXIT_INTERRUPTED"]
+
+# Exit codes of every sinkopt command.
+EXIT_OK = 0
+EXIT_INTERNAL = 1
+EXIT_INPUT = 2  #: bad input (study file, fan curve, option value)
+EXIT_INFEASIBLE = 3  #: the search found no feasible design
+EXIT_INTERRUPTED = 130  #: stopped by Ctrl-C / a signal, results saved
 
 
 class SinkoptError(Exception):
@@ -25,7 +33,7 @@ class InputError(SinkoptError, ValueError):
         Dotted path or column name of the offending field.
     """
 
-    exit_code = 2
+    exit_code = EXIT_INPUT
 
     def __init__(self, message: str, source: str | None = None, field: str | None = None):
         self.message = message

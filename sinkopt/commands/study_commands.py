@@ -9,12 +9,9 @@ import sys
 import time
 from pathlib import Path
 
-from sinkopt.errors import InputError
+from sinkopt.errors import EXIT_INFEASIBLE, EXIT_INTERRUPTED, InputError
 
 __all__ = ["register", "parse_set"]
-
-EXIT_INFEASIBLE = 3
-EXIT_INTERRUPTED = 130
 
 
 def register(sub) -> None:

@@ -7,11 +7,9 @@ import random
 import sys
 from pathlib import Path
 
-from sinkopt.errors import InputError
+from sinkopt.errors import EXIT_INTERRUPTED, InputError
 
 __all__ = ["register", "cmd_worker"]
-
-EXIT_INTERRUPTED = 130
 
 
 def register(sub) -> None:

@@ -64,6 +64,13 @@ class Thermal(NamedTuple):
     z_star: np.ndarray  #: L/(√A Re_√A Pr) of the channel [-]
 
 
+def _hydraulic_diameter(gap, fin_height, option):
+    """D_h of the fin channel under the named convention (:data:`HYDRAULIC_DIAMETERS`)."""
+    if option == "parallel_plates":
+        return geo.hydraulic_diameter_parallel_plates(gap)
+    return geo.hydraulic_diameter_rectangular_channel(gap, fin_height)
+
+
 def _check_option(name, value, allowed):
     if value not in allowed:
         raise ValueError(f"{name} must be one of {', '.join(allowed)}; got {value!r}")
@@ -110,10 +117,7 @@ def sink_hydraulics(width, length, fin_height, fin_thickness, n_fins, flow, air:
     length = np.asarray(length, dtype=float)
     b = geo.fin_gap(width, n_fins, fin_thickness)
     velocity = np.asarray(flow, dtype=float) / geo.channel_flow_area(width, n_fins, fin_thickness, h)
-    if hydraulic_diameter == "parallel_plates":
-        dh = geo.hydraulic_diameter_parallel_plates(b)
-    else:
-        dh = geo.hydraulic_diameter_rectangular_channel(b, h)
+    dh = _hydraulic_diameter(b, h, hydraulic_diameter)
     # A floor on Re keeps Δp(0) = 0 (the fan solver evaluates the system at zero flow).
     re = np.maximum(air.density * velocity * dh / air.viscosity, 1e-12)
     aspect = np.minimum(b, h) / np.maximum(b, h)
@@ -206,8 +210,7 @@ def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins
     length = np.asarray(length, dtype=float)
     b = geo.fin_gap(width, n_fins, fin_thickness)
     inv_area = 1.0 / geo.channel_flow_area(width, n_fins, fin_thickness, h)
-    dh = (geo.hydraulic_diameter_parallel_plates(b) if hydraulic_diameter == "parallel_plates"
-          else geo.hydraulic_diameter_rectangular_channel(b, h))
+    dh = _hydraulic_diameter(b, h, hydraulic_diameter)
     re_per_flow = air.density * dh / air.viscosity * inv_area
     fre = cv.fre_rectangular_duct_shah_london_1978(np.minimum(b, h) / np.maximum(b, h))
     l_over_dh = length / dh
@@ -353,8 +356,7 @@ def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: Ai
         ua, eta_lam = finned_conductance(h_lam)
         g_lam = cv.effectiveness_isothermal_wall(ua / mcp) * mcp
 
-    dh = (geo.hydraulic_diameter_parallel_plates(b) if hydraulic_diameter == "parallel_plates"
-          else geo.hydraulic_diameter_rectangular_channel(b, h_fin))
+    dh = _hydraulic_diameter(b, h_fin, hydraulic_diameter)
     re = velocity * dh / nu_kin
     w = cv.transition_weight(re)
 
