@@ -7,6 +7,7 @@ recomputed, e.g. by ``sinkopt evaluate``.
 """
 from __future__ import annotations
 
+import logging
 import math
 import shlex
 from dataclasses import dataclass, field
@@ -22,6 +23,8 @@ from sinkopt.system import BatchResult, evaluate_params
 
 __all__ = ["Results", "collect_results", "design_record", "evaluate_command",
            "SCHEMA_VERSION", "REVIEW_MARGIN_K"]
+
+log = logging.getLogger(__name__)
 
 SCHEMA_VERSION = 1
 #: Designs that the search found infeasible by less than this junction margin are re-checked
@@ -142,7 +145,15 @@ def collect_results(problem: Problem, study: optuna.Study) -> Results:
     states: dict[str, int] = {}
     for t in trials:
         states[t.state.name] = states.get(t.state.name, 0) + 1
+    searched = {v.name for v in problem.variables if not v.is_fixed}
     complete = [t for t in trials if t.state == TrialState.COMPLETE]
+    partial = [t.number for t in complete if not searched <= set(t.params)]
+    if partial:
+        # Seen once in CI after a multi-worker run was interrupted; not reproduced since. Such a
+        # trial cannot be re-evaluated, so it is left out of the results, and said so.
+        log.warning("trials %s are COMPLETE but lack some design variables; left out of the "
+                    "results", partial[:20])
+        complete = [t for t in complete if t.number not in partial]
     numbers = np.array([t.number for t in complete], dtype=int)
     if not complete:
         empty = np.array([], dtype=int)

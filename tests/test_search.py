@@ -66,3 +66,21 @@ def test_default_scheme_beats_random_search_at_equal_trials():
         return moocore.hypervolume(z, ref=np.full(z.shape[1], 1.1))
 
     assert hv(fa) > hv(fb)
+
+
+def test_a_complete_trial_without_every_variable_is_left_out_of_the_results(caplog):
+    from optuna.distributions import FloatDistribution
+
+    from sinkopt.results import collect_results
+
+    problem = load_study(DEMO)
+    optuna.logging.set_verbosity(optuna.logging.ERROR)
+    study = open_study(problem, optuna.storages.InMemoryStorage(), 1, "random")
+    run_search(problem, study, 16, scheme="random", seed=1)
+    study.add_trial(optuna.trial.create_trial(
+        params={"width_mm": 80.0}, distributions={"width_mm": FloatDistribution(60, 140)},
+        values=[1.0, 1.0, 1.0]))
+    results = collect_results(problem, study)
+    assert len(results.trial_numbers) == 16 and 16 not in results.trial_numbers
+    assert results.states["COMPLETE"] == 17
+    assert "lack some design variables" in caplog.text
