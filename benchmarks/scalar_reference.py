@@ -2,7 +2,7 @@
 Python floats and ``math``, ``scipy.optimize.brentq`` for the fan operating point, and the
 reference libraries' correlations where one exists (ht, fluids).
 
-It is an independent re-implementation of what :func:`sinkopt.system.evaluate_params` computes
+It is an independent re-implementation of what :func:`sinkopt.model.system.evaluate_params` computes
 for a ducted sink (no bypass, no extra losses, no failed-fan check), used by
 ``benchmarks/throughput.py`` as a cross-check of the vectorised model and as the speed baseline.
 It never calls sinkopt's physics or fan functions: from sinkopt it takes only *data* (the
@@ -122,7 +122,7 @@ def _phi(zeta, t, k, h):
 
 
 class ScalarReference:
-    """Evaluate designs of a ducted :class:`~sinkopt.problem.Problem` one at a time."""
+    """Evaluate designs of a ducted :class:`~sinkopt.model.problem.Problem` one at a time."""
 
     def __init__(self, problem, spreading="coarse"):
         if not problem.air.ducted or problem.air.extra_loss_coefficient or \

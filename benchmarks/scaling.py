@@ -52,9 +52,10 @@ def one_cell(storage: str, url: str | None, n_workers: int, n_trials: int, sampl
     import optuna
     from optuna.trial import TrialState
 
-    from sinkopt.search import open_study, storage_for
-    from sinkopt.study_file import load_study
-    from sinkopt.workers import run_local_workers
+    from sinkopt.search.optuna_search import open_study
+    from sinkopt.search.storage import storage_for
+    from sinkopt.study.reader import load_study
+    from sinkopt.search.workers import run_local_workers
 
     optuna.logging.set_verbosity(optuna.logging.WARNING)
     with tempfile.TemporaryDirectory() as tmp:

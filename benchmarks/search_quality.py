@@ -29,12 +29,12 @@ sys.path.insert(0, str(ROOT))
 
 import optuna  # noqa: E402
 
-from sinkopt.explore import Encoder  # noqa: E402
-from sinkopt.pareto import nondominated_mask, to_minimization  # noqa: E402
-from sinkopt.problem import OBJECTIVES  # noqa: E402
-from sinkopt.search import open_study, run_search  # noqa: E402
-from sinkopt.study_file import load_study  # noqa: E402
-from sinkopt.system import evaluate_params  # noqa: E402
+from sinkopt.search.refine import Encoder  # noqa: E402
+from sinkopt.search.pareto import nondominated_mask, to_minimization  # noqa: E402
+from sinkopt.model.problem import OBJECTIVES  # noqa: E402
+from sinkopt.search.optuna_search import open_study, run_search  # noqa: E402
+from sinkopt.study.reader import load_study  # noqa: E402
+from sinkopt.model.system import evaluate_params  # noqa: E402
 
 STUDIES = {"demo_inverter": ROOT / "studies" / "demo_inverter.toml",
            "demo_mounting": ROOT / "studies" / "demo_mounting.toml"}

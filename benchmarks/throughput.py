@@ -1,7 +1,7 @@
 """Throughput of the vectorised evaluation against a plain scalar reference (issue #6, part 1).
 
 A fixed, seeded set of random designs of ``studies/demo_inverter.toml`` (5 devices, 5 fans x
-counts 1-2, fan speed searched) goes through :func:`sinkopt.system.evaluate_params` with a
+counts 1-2, fan speed searched) goes through :func:`sinkopt.model.system.evaluate_params` with a
 dict of columns, the path the search uses, in chunks (bounded memory), once with the ``fast``
 spreading form and once with the search's default ``coarse`` series. The first designs of the
 same set also go through ``benchmarks/scalar_reference.py`` (one design at a time, brentq,
@@ -41,8 +41,8 @@ if str(HERE) not in sys.path:
 
 from scalar_reference import ScalarReference  # noqa: E402
 
-from sinkopt.study_file import load_study  # noqa: E402
-from sinkopt.system import evaluate_params  # noqa: E402
+from sinkopt.study.reader import load_study  # noqa: E402
+from sinkopt.model.system import evaluate_params  # noqa: E402
 
 STUDY = REPO / "studies" / "demo_inverter.toml"
 PEAK_RSS_LIMIT_MiB = 1024.0

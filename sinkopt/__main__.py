@@ -1,3 +1,3 @@
-from sinkopt.cli import main
+from sinkopt.cli.main import main
 
 raise SystemExit(main())

@@ -1,6 +1,12 @@
-"""Notebook API: run a study and read a results folder as pandas DataFrames::
+"""The Python API, the one documented home of sinkopt's entry points: read a study, evaluate
+designs, run a study and read a results folder as pandas DataFrames::
 
     import sinkopt.api as so
+    problem = so.load_study("studies/demo_inverter.toml")
+    design = {"width_mm": 100, "length_mm": 100, "fin_height_mm": 30, "fin_thickness_mm": 1.5,
+              "n_fins": 18, "base_thickness_mm": 6, "fan": "demo-axial-80-stall", "fan_speed": 1.0}
+    batch = so.evaluate_params(problem, [design])
+    batch.objectives, batch.feasible
     res = so.run_study("studies/demo_inverter.toml", trials=200, seed=1, out="results/demo")
     res.pareto_df()[["trial", "volume_cm3", "fan_power_W", "worst_margin_K"]]
     res.design(int(res.pareto_df()["trial"][0]))["devices"]
@@ -12,7 +18,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-__all__ = ["ResultsFolder", "load_results", "run_study"]
+__all__ = ["ResultsFolder", "load_study", "evaluate_params", "load_results", "run_study"]
 
 
 @dataclass(frozen=True)
@@ -42,6 +48,27 @@ class ResultsFolder:
         return json.loads((self.path / "run.json").read_text())
 
 
+def load_study(path):
+    """Read and check a study file; returns the resolved problem (SI units inside).
+
+    Bad input raises :class:`sinkopt.errors.InputError` naming the file, the field and the rule.
+    """
+    from sinkopt.study.reader import load_study as _load
+
+    return _load(path)
+
+
+def evaluate_params(problem, params, spreading: str | None = None):
+    """Evaluate designs of a problem: a list of parameter dicts, or a dict of columns (one array
+    per variable, the fast path). Each design gives every free variable of the study, by the
+    names and units of its ``[variables]`` (``width_mm``, ``n_fins``, ``fan``, ``fan_speed``...);
+    fixed variables may be left out. Returns a batch result with objectives, constraints and the
+    per-device evaluation."""
+    from sinkopt.model.system import evaluate_params as _evaluate
+
+    return _evaluate(problem, params, spreading=spreading)
+
+
 def load_results(folder) -> ResultsFolder:
     path = Path(folder)
     if not (path / "trials.csv").is_file():
@@ -56,8 +83,8 @@ def run_study(study, trials: int | None = None, seed: int | None = None, out=Non
     Raises ``RuntimeError`` with the exit code when the run does not end normally (2: bad input,
     3: no feasible design, 130: interrupted).
     """
-    from sinkopt.cli import main
-    from sinkopt.study_file import load_study
+    from sinkopt.cli.main import main
+    from sinkopt.study.reader import load_study
 
     out = Path(out) if out is not None else load_study(study).default_results_dir()
     argv = ["run", str(study), "--out", str(out), "--no-progress"]

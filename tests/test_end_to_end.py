@@ -14,11 +14,11 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from sinkopt.cli import main
-from sinkopt.pareto import dominates, to_minimization
-from sinkopt.problem import OBJECTIVES
-from sinkopt.study_file import load_study
-from sinkopt.system import evaluate_params
+from sinkopt.cli.main import main
+from sinkopt.search.pareto import dominates, to_minimization
+from sinkopt.model.problem import OBJECTIVES
+from sinkopt.study.reader import load_study
+from sinkopt.model.system import evaluate_params
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "studies" / "demo_inverter.toml"

@@ -5,10 +5,10 @@ import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
-from sinkopt.design import (Conditions, Device, ModelOptions, MountingStack, SinkGeometry,
+from sinkopt.model.design import (Conditions, Device, ModelOptions, MountingStack, SinkGeometry,
                             check_geometry)
 from sinkopt.errors import GeometryError
-from sinkopt.model import evaluate
+from sinkopt.model.known_flow import evaluate
 
 GREASE = MountingStack("grease", (), "grease", 0.1e-4, 4e-4)
 

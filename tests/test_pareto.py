@@ -4,7 +4,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from sinkopt.pareto import dominates, nondominated_mask
+from sinkopt.search.pareto import dominates, nondominated_mask
 
 
 def brute(f):

@@ -6,10 +6,10 @@ import numpy as np
 import optuna
 import pytest
 
-from sinkopt.pareto import nondominated_mask, to_minimization
-from sinkopt.problem import OBJECTIVES
-from sinkopt.search import open_study, run_search
-from sinkopt.study_file import load_study
+from sinkopt.search.pareto import nondominated_mask, to_minimization
+from sinkopt.model.problem import OBJECTIVES
+from sinkopt.search.optuna_search import open_study, run_search
+from sinkopt.study.reader import load_study
 
 DEMO = Path(__file__).resolve().parent.parent / "studies" / "demo_inverter.toml"
 
@@ -71,7 +71,7 @@ def test_default_scheme_beats_random_search_at_equal_trials():
 def test_a_complete_trial_without_every_variable_is_left_out_of_the_results(caplog):
     from optuna.distributions import FloatDistribution
 
-    from sinkopt.results import collect_results
+    from sinkopt.results.collect import collect_results
 
     problem = load_study(DEMO)
     optuna.logging.set_verbosity(optuna.logging.ERROR)

@@ -7,7 +7,7 @@ from pathlib import Path
 
 import pytest
 
-from sinkopt.cli import main
+from sinkopt.cli.main import main
 
 ROOT = Path(__file__).resolve().parent.parent
 

@@ -52,7 +52,7 @@ def flow_fraction_lossless_bypass(sink_dp: Callable[[np.ndarray], np.ndarray], g
     --------
     physics.md §6 (REF-1 fins in a 60 × 35 mm duct at 3 m/s): fin flow fraction 0.27081.
 
-    >>> from sinkopt.design import SinkGeometry
+    >>> from sinkopt.model.design import SinkGeometry
     >>> from sinkopt.physics.air import AirProperties
     >>> from sinkopt.physics.heatsink import sink_hydraulics
     >>> air = AirProperties(1.184318, 1.844808e-5, 0.026247, 1006.308, 298.15, 101325.0)

@@ -149,9 +149,9 @@ def recomputed_front(problem, complete_trials) -> set[int]:
     spreading series, the infeasible ones dropped, the non-dominated rest (objectives turned to
     minimisation) kept. This is what ``pareto.csv`` must list: collect_results reviews only the
     trials the search model found feasible or nearly so, and this checks that none was missed."""
-    from sinkopt.pareto import nondominated_mask, to_minimization
-    from sinkopt.problem import OBJECTIVES
-    from sinkopt.system import evaluate_params
+    from sinkopt.search.pareto import nondominated_mask, to_minimization
+    from sinkopt.model.problem import OBJECTIVES
+    from sinkopt.model.system import evaluate_params
 
     exact = evaluate_params(problem, [t.params for t in complete_trials], spreading="exact")
     numbers = np.array([t.number for t in complete_trials])

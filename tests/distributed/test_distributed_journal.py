@@ -14,7 +14,7 @@ import pytest
 from optuna.storages.journal import JournalFileBackend, JournalStorage
 from optuna.trial import TrialState
 
-from sinkopt.study_file import load_study
+from sinkopt.study.reader import load_study
 
 from dist_helpers import (check_study_sound, complete_count, kill_holding_trials,
                           recomputed_front, sinkopt_cmd, wait_until, write_study)

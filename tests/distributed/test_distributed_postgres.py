@@ -12,9 +12,9 @@ import optuna
 import pandas as pd
 import pytest
 
-from sinkopt.cli import main
-from sinkopt.search import storage_for
-from sinkopt.study_file import load_study
+from sinkopt.cli.main import main
+from sinkopt.search.storage import storage_for
+from sinkopt.study.reader import load_study
 
 from dist_helpers import (check_study_sound, complete_count, kill_holding_trials, password_of,
                       recomputed_front, sinkopt_cmd, wait_until, write_study)

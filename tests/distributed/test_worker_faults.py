@@ -13,11 +13,12 @@ import pytest
 from optuna.storages.journal import JournalFileBackend, JournalStorage
 from optuna.trial import TrialState
 
-from sinkopt.cli import main
+from sinkopt.cli.main import main
 from sinkopt.errors import InputError
-from sinkopt.search import fail_stale_trials, storage_for
-from sinkopt.study_file import load_study
-from sinkopt.workers import _is_conflict, redact_text, storage_error, tag_new_trials
+from sinkopt.search.optuna_search import fail_stale_trials
+from sinkopt.search.storage import redact_text, storage_error, storage_for
+from sinkopt.study.reader import load_study
+from sinkopt.search.workers import _is_conflict, tag_new_trials
 
 from dist_helpers import write_study
 
@@ -161,57 +162,51 @@ def test_wrong_password_is_an_input_error_without_the_password(pg_url, tmp_path,
 
 
 def test_a_worker_survives_trials_failed_under_it(tmp_path, monkeypatch):
-    """Another process (here a thread with its own storage object) fails up to three of the worker's
-    live trials as stale: each tell of such a trial is a conflict that costs the worker one
-    batch, and the study still reaches its count with each failed trial retried exactly once."""
-    import threading
-
-    import sinkopt.search
-    from sinkopt.search import open_study
-    from sinkopt.workers import work
-
-    evaluate = sinkopt.search.evaluate_params
-
-    def slow_evaluate(*args, **kwargs):  # an evaluation that takes a while, as real ones do
-        time.sleep(0.05)
-        return evaluate(*args, **kwargs)
-
-    monkeypatch.setattr(sinkopt.search, "evaluate_params", slow_evaluate)
+    """Another process (here a second storage object on the same journal) fails one live trial of
+    the worker as stale during three of its batches. The events are placed by the test, not by
+    timing: the failure happens inside the evaluation of batches 2, 5 and 8, while that batch's
+    trials are RUNNING. Each failed trial is skipped at tell time (the rest of its batch is told),
+    its retry is queued once, and the study still reaches its count."""
+    import sinkopt.search.optuna_search as optuna_search
+    from sinkopt.search.optuna_search import open_study
+    from sinkopt.search.workers import work
 
     problem = load_study(write_study(tmp_path))
     make = _journal_maker(tmp_path)
     study = open_study(problem, make(), 1, "random")
     other = optuna.load_study(study_name=problem.name, storage=make())
-    n_trials, batch, n_kills = 60, 4, 3
-    done = threading.Event()
+    n_trials, batch, fail_in_batches = 60, 4, (2, 5, 8)
     failed_by_other = []
+    evaluate = optuna_search.evaluate_params
+    calls = 0
 
-    def other_worker():
-        while not done.is_set() and len(failed_by_other) < n_kills:
-            for t in other.get_trials(deepcopy=False, states=(TrialState.RUNNING,)):
-                # fail_stale_trials on this one trial: it returns 1 only if this call failed it
-                real = type(other).get_trials.__get__(other)
-                other.get_trials = (lambda deepcopy=True, states=None, t=t, real=real:
-                                    [t] if states == (TrialState.RUNNING,)
-                                    else real(deepcopy=deepcopy, states=states))
-                try:
-                    if fail_stale_trials(other, max_age_s=0.0):
-                        failed_by_other.append(t.number)
-                finally:
-                    del other.get_trials
-                break
-            time.sleep(0.001)
+    def fail_one_live_trial():
+        running = other.get_trials(deepcopy=False, states=(TrialState.RUNNING,))
+        assert running, "the batch under evaluation has no RUNNING trial"
+        t = running[0]
+        real = type(other).get_trials.__get__(other)
+        # fail_stale_trials on this one trial: it returns 1 only if this call failed it
+        other.get_trials = (lambda deepcopy=True, states=None, t=t, real=real:
+                            [t] if states == (TrialState.RUNNING,)
+                            else real(deepcopy=deepcopy, states=states))
+        try:
+            if fail_stale_trials(other, max_age_s=0.0):
+                failed_by_other.append(t.number)
+        finally:
+            del other.get_trials
 
-    thread = threading.Thread(target=other_worker)
-    thread.start()
-    try:
-        summary = work(problem, study, n_trials, batch_size=batch, stale_after_s=None,
-                       scheme="random", seed=1)
-    finally:
-        done.set()
-        thread.join()
-    assert failed_by_other, "the other worker never caught a live trial"
-    assert summary.lost_batches >= 1
+    def evaluate_while_another_fails_one(*args, **kwargs):
+        nonlocal calls
+        calls += 1
+        if calls in fail_in_batches:
+            fail_one_live_trial()
+        return evaluate(*args, **kwargs)
+
+    monkeypatch.setattr(optuna_search, "evaluate_params", evaluate_while_another_fails_one)
+    summary = work(problem, study, n_trials, batch_size=batch, stale_after_s=None,
+                   scheme="random", seed=1)
+    assert len(failed_by_other) == len(fail_in_batches)
+    assert summary.lost_batches == 0  # a skipped trial does not cost the rest of its batch
     trials = optuna.load_study(study_name=problem.name, storage=make()).trials
     states = Counter(t.state for t in trials)
     assert states[TrialState.RUNNING] == 0
@@ -229,3 +224,35 @@ def test_a_worker_survives_trials_failed_under_it(tmp_path, monkeypatch):
         for retry in retries:  # queued with exactly the parameters the failed trial had
             assert retry.system_attrs["fixed_params"] == failed.params
     assert sorted(t.number for t in trials) == list(range(len(trials)))
+
+
+def test_a_conflict_outside_the_tell_costs_one_batch_and_nothing_else(tmp_path, monkeypatch):
+    """A conflict raised while a batch is in hand (another worker finished one of its trials
+    before this one could even record its worker tag) drops that batch only: the worker counts
+    one lost batch, fails its own RUNNING trials, and the study still reaches its count. The
+    conflict is injected once, on the third batch."""
+    import sinkopt.search.optuna_search as optuna_search
+    from sinkopt.search.optuna_search import open_study
+    from sinkopt.search.workers import work
+
+    problem = load_study(write_study(tmp_path))
+    make = _journal_maker(tmp_path)
+    study = open_study(problem, make(), 1, "random")
+    evaluate = optuna_search.evaluate_params
+    calls = 0
+
+    def evaluate_with_one_conflict(*args, **kwargs):
+        nonlocal calls
+        calls += 1
+        if calls == 3:
+            raise optuna.exceptions.UpdateFinishedTrialError("trial finished by another worker")
+        return evaluate(*args, **kwargs)
+
+    monkeypatch.setattr(optuna_search, "evaluate_params", evaluate_with_one_conflict)
+    summary = work(problem, study, 24, batch_size=4, stale_after_s=None, scheme="random", seed=1)
+    assert summary.lost_batches == 1
+    states = Counter(t.state for t in optuna.load_study(study_name=problem.name,
+                                                        storage=make()).trials)
+    assert states[TrialState.RUNNING] == 0
+    assert states[TrialState.FAIL] == 4
+    assert states[TrialState.COMPLETE] == 24

@@ -6,8 +6,8 @@ import shutil
 import pytest
 from fan_helpers import CATALOG, write
 
-from sinkopt.cli import main
-from sinkopt.commands.fan import curve_plot_data, fan_curve_figure, format_curve
+from sinkopt.cli.main import main
+from sinkopt.cli.fan import curve_plot_data, fan_curve_figure, format_curve
 from sinkopt.fans import load_fan_curve
 
 

@@ -5,7 +5,7 @@ import numpy as np
 import pytest
 from fan_helpers import write
 
-from sinkopt.cli import main
+from sinkopt.cli.main import main
 from sinkopt.errors import InputError
 from sinkopt.fans import FanCurveWarning, load_fan_curve, parse_fan_curve
 

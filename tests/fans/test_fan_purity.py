@@ -7,7 +7,7 @@ import sys
 CODE = """
 import sys
 import sinkopt.fans, sinkopt.fans.units, sinkopt.fans.curve, sinkopt.fans.curve_file
-import sinkopt.fans.operating_point, sinkopt.commands.fan
+import sinkopt.fans.operating_point, sinkopt.cli.fan
 heavy = [m for m in ("optuna", "pandas", "plotly") if m in sys.modules]
 print(",".join(heavy))
 """

@@ -2,7 +2,7 @@
 import numpy as np
 import pytest
 
-from sinkopt.design import SinkGeometry
+from sinkopt.model.design import SinkGeometry
 from sinkopt.physics.air import AirProperties
 from sinkopt.physics.bypass import flow_fraction_lossless_bypass
 from sinkopt.physics.heatsink import sink_hydraulics, sink_thermal

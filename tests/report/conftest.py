@@ -6,10 +6,10 @@ import shutil
 import optuna
 import pytest
 
-from sinkopt.cli import main
-from sinkopt.results import collect_results
-from sinkopt.search import storage_for
-from sinkopt.study_file import load_study
+from sinkopt.cli.main import main
+from sinkopt.results.collect import collect_results
+from sinkopt.search.storage import storage_for
+from sinkopt.study.reader import load_study
 
 from report_cases import (DEMO, FANS, HOSTILE_DEVICE, HOSTILE_FAN, HOSTILE_FAN_NAME,
                           HOSTILE_STUDY)

@@ -4,12 +4,12 @@ import pandas as pd
 import pytest
 
 from sinkopt.fans import FanArray
-from sinkopt.model import inlet_air
-from sinkopt.problem import OBJECTIVES
-from sinkopt.report_data import (design_panel_data, drawing_scale, fan_system_curves,
+from sinkopt.model.known_flow import inlet_air
+from sinkopt.model.problem import OBJECTIVES
+from sinkopt.results.report_data import (design_panel_data, drawing_scale, fan_system_curves,
                                  pareto_plot_data, pareto_table_data, parcoords_data, report_data,
                                  sink_drawing)
-from sinkopt.system import evaluate_params, fan_choices
+from sinkopt.model.system import evaluate_params, fan_choices
 
 
 def test_pareto_data_holds_exactly_the_pareto_trials(demo_results):
@@ -218,8 +218,8 @@ def test_pareto_table_rows_follow_pareto_csv(demo_dir, demo_results):
 
 def test_designs_without_values_carry_none(demo_results):
     """A design with no valid geometry gets None, never the search's penalty numbers."""
-    from sinkopt.results import Results
-    from sinkopt.report_data import trial_points
+    from sinkopt.results.collect import Results
+    from sinkopt.results.report_data import trial_points
 
     problem = demo_results.problem
     good = demo_results.pareto_records()[0]["params"]
@@ -247,7 +247,7 @@ def test_report_data_is_json_ready(demo_results, demo_info):
 def test_curves_of_a_study_with_a_given_airflow(tmp_path):
     """No fans: only the system curve, through the operating point at the given flow."""
     from report_cases import DEMO
-    from sinkopt.study_file import load_study
+    from sinkopt.study.reader import load_study
 
     text = DEMO.read_text(encoding="utf-8")
     text = (text[:text.index("[air]")] + "[air]\nducted = true\nflow_m3_per_h = 60\n\n"

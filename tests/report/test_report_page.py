@@ -7,10 +7,10 @@ import shutil
 
 import pytest
 
-from sinkopt.cli import main
-from sinkopt.report import (breakdown_figure, fan_system_figure, json_for_script,
+from sinkopt.cli.main import main
+from sinkopt.results.report import (breakdown_figure, fan_system_figure, json_for_script,
                             parcoords_figure, render_report)
-from sinkopt.report_data import report_data
+from sinkopt.results.report_data import report_data
 
 from report_cases import (DEMO, HOSTILE_DEVICE, HOSTILE_FAN, HOSTILE_FAN_NAME,
                           HOSTILE_STUDY)
@@ -103,7 +103,7 @@ def test_hostile_names_are_text_not_markup(hostile_dir):
 def test_page_script_never_uses_innerhtml():
     from importlib import resources
 
-    js = resources.files("sinkopt").joinpath("report_assets", "report.js").read_text()
+    js = resources.files("sinkopt.results").joinpath("report_assets", "report.js").read_text()
     assert "innerHTML" not in js and "insertAdjacentHTML" not in js and "document.write" not in js
 
 

@@ -1,7 +1,7 @@
 """`sinkopt init` writes a starter study that `sinkopt check` accepts, and never overwrites."""
 from __future__ import annotations
 
-from sinkopt.cli import main
+from sinkopt.cli.main import main
 
 
 def test_init_then_check_passes(tmp_path, capsys):

@@ -3,9 +3,9 @@ from __future__ import annotations
 
 import pytest
 
-from sinkopt.cli import main
+from sinkopt.cli.main import main
 from sinkopt.errors import InputError
-from sinkopt.study_file import load_study
+from sinkopt.study.reader import load_study
 
 FAN_ENTRY = '  [[air.fan]]\n  file = "fans/*.csv"\n'
 

@@ -6,8 +6,8 @@ from pathlib import Path
 
 import pytest
 
-from sinkopt.problem import AirSupply, Problem
-from sinkopt.study_file import (fan_choices, fan_label, fan_speed_ratio, load_study,
+from sinkopt.model.problem import AirSupply, Problem
+from sinkopt.study.reader import (fan_choices, fan_label, fan_speed_ratio, load_study,
                                 parse_study)
 
 

@@ -22,12 +22,12 @@ from optuna.distributions import (BaseDistribution, CategoricalDistribution, Flo
                                   IntDistribution)
 from optuna.trial import TrialState
 
-from sinkopt.pareto import nondominated_mask, to_minimization
-from sinkopt.problem import OBJECTIVES, SAMPLERS, Problem
-from sinkopt.system import BatchResult, evaluate_params
+from sinkopt.search.pareto import nondominated_mask, to_minimization
+from sinkopt.model.problem import OBJECTIVES, SAMPLERS, Problem
+from sinkopt.model.system import BatchResult, evaluate_params
 
 __all__ = ["SAMPLERS", "distributions", "make_sampler", "open_study", "run_search",
-           "SearchProgress", "fail_stale_trials", "storage_for", "STUDY_JOURNAL"]
+           "SearchProgress", "fail_stale_trials"]
 
 log = logging.getLogger(__name__)
 
@@ -54,7 +54,6 @@ def sampler_asks(n_complete: int, batch: int) -> int:
     if n_complete < 500:
         return 1
     return 1 if (n_complete // batch) % 2 == 0 else 0
-STUDY_JOURNAL = "study.journal"
 #: Trials asked before the batch is evaluated and told. TPE's constant liar keeps a batch spread
 #: out; batches make TPE ~3x cheaper per trial (optimizer.md §4).
 DEFAULT_BATCH = 8
@@ -81,7 +80,7 @@ def distributions(problem: Problem) -> dict[str, BaseDistribution]:
 
 def make_sampler(name: str, seed: int | None, n_objectives: int) -> optuna.samplers.BaseSampler:
     """Build the named Optuna sampler. ``tpe`` and ``tpe-refine``: multivariate TPE with the
-    constant liar (``tpe-refine`` adds :mod:`sinkopt.explore` proposals in :func:`run_search`)."""
+    constant liar (``tpe-refine`` adds :mod:`sinkopt.search.refine` proposals in :func:`run_search`)."""
     if name in ("tpe", "tpe-refine"):
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", optuna.exceptions.ExperimentalWarning)
@@ -99,27 +98,6 @@ def make_sampler(name: str, seed: int | None, n_objectives: int) -> optuna.sampl
             return make_sampler("tpe", seed, n_objectives)
         return optuna.samplers.GPSampler(seed=seed)
     raise ValueError(f"sampler must be one of {', '.join(SAMPLERS)}; got {name!r}")
-
-
-def storage_for(out_dir, url: str | None = None):
-    """Optuna storage: the journal file in the results folder, or any database URL."""
-    if url:
-        if url.startswith(("postgresql", "mysql", "sqlite")):
-            # pool_pre_ping: a worker (or a waiting parent) whose pooled connection was dropped
-            # by the server while idle reconnects instead of failing its next query.
-            kwargs = ({} if url.startswith("sqlite")
-                      else {"engine_kwargs": {"pool_pre_ping": True}})
-            try:
-                # No heartbeat: it runs only inside study.optimize, never with ask/tell; sinkopt
-                # fails stale trials itself (fail_stale_trials).
-                return optuna.storages.RDBStorage(url, **kwargs)
-            except Exception as exc:  # noqa: BLE001 - unreachable/invalid database, no driver
-                from sinkopt.workers import storage_error  # its message has no password
-
-                raise storage_error(url, exc) from None
-        return url
-    from optuna.storages.journal import JournalFileBackend, JournalStorage
-    return JournalStorage(JournalFileBackend(str(os.path.join(out_dir, STUDY_JOURNAL))))
 
 
 def open_study(problem: Problem, storage, seed: int | None, sampler: str | None = None,
@@ -271,7 +249,7 @@ def run_search(problem: Problem, study: optuna.Study, n_trials: int, timeout: fl
     scheme = scheme or problem.sampler
     refiner = None
     if scheme == "tpe-refine" and space:
-        from sinkopt.explore import FrontRefiner
+        from sinkopt.search.refine import FrontRefiner
 
         done_trials = study.get_trials(deepcopy=False, states=(TrialState.COMPLETE,))
         refiner = FrontRefiner(problem, None if seed is None else seed + len(study.trials))

@@ -17,9 +17,9 @@ import numpy as np
 import optuna
 from optuna.trial import TrialState
 
-from sinkopt.pareto import nondominated_mask, to_minimization
-from sinkopt.problem import OBJECTIVES, Problem
-from sinkopt.system import BatchResult, evaluate_params
+from sinkopt.search.pareto import nondominated_mask, to_minimization
+from sinkopt.model.problem import OBJECTIVES, Problem
+from sinkopt.model.system import BatchResult, evaluate_params
 
 __all__ = ["Results", "collect_results", "design_record", "evaluate_command",
            "SCHEMA_VERSION", "REVIEW_MARGIN_K"]

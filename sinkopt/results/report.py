@@ -1,7 +1,7 @@
 """The self-contained HTML report of a results folder (``report.html``).
 
 One file that works with no network: plotly.js is inlined once, the page's own script and style
-come from ``sinkopt/report_assets/``, and the data (:func:`sinkopt.report_data.report_data`) plus
+come from ``sinkopt/results/report_assets/``, and the data (:func:`sinkopt.results.report_data.report_data`) plus
 the per-design figures built here are embedded as JSON in ``<script type="application/json">``
 blocks. A Content-Security-Policy ``<meta>`` forbids every network request from the page.
 
@@ -26,7 +26,7 @@ from importlib import resources
 from pathlib import Path
 from typing import Any, Sequence
 
-from sinkopt.results import Results
+from sinkopt.results.collect import Results
 
 __all__ = ["write_report", "render_report", "report_figures", "fan_system_figure",
            "breakdown_figure", "parcoords_figure", "json_for_script", "CSP"]
@@ -389,7 +389,7 @@ the final design reviewed and approved by a qualified person.</li>
 
 
 def _asset(name: str) -> str:
-    return resources.files("sinkopt").joinpath("report_assets", name).read_text(encoding="utf-8")
+    return resources.files("sinkopt.results").joinpath("report_assets", name).read_text(encoding="utf-8")
 
 
 def _plotly_js() -> str:
@@ -402,7 +402,7 @@ def _plotly_js() -> str:
 
 def render_report(results: Results, info: dict[str, Any] | None = None) -> str:
     """The report page as one HTML string."""
-    from sinkopt.report_data import report_data
+    from sinkopt.results.report_data import report_data
 
     data = _round(report_data(results, info))
     figures = report_figures(data)

@@ -1,7 +1,7 @@
 """A resolved design problem: what the study file describes, in SI units, ready for the search.
 
-The study-file reader (:mod:`sinkopt.study_file`) builds a :class:`Problem`; the evaluator
-(:mod:`sinkopt.system`) and the search (:mod:`sinkopt.search`) consume it. No I/O here.
+The study-file reader (:mod:`sinkopt.study.reader`) builds a :class:`Problem`; the evaluator
+(:mod:`sinkopt.model.system`) and the search (:mod:`sinkopt.search.optuna_search`) consume it. No I/O here.
 """
 from __future__ import annotations
 
@@ -9,7 +9,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from sinkopt.design import Conditions, Device, ModelOptions
+from sinkopt.model.design import Conditions, Device, ModelOptions
 
 __all__ = [
     "SAMPLERS",
@@ -36,7 +36,7 @@ GEOMETRY_VARIABLES = {
 }
 
 #: Search schemes. ``tpe-refine`` (default): multivariate TPE plus vectorised refinement of the
-#: Pareto front (sinkopt.explore); the others are Optuna's samplers alone.
+#: Pareto front (sinkopt.search.refine); the others are Optuna's samplers alone.
 SAMPLERS = ("tpe-refine", "tpe", "nsga2", "random", "gp")
 DEFAULT_SAMPLER = "tpe-refine"
 

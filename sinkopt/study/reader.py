@@ -1,4 +1,4 @@
-"""Read a study file (TOML, docs/study-file.md) into a :class:`~sinkopt.problem.Problem` in SI,
+"""Read a study file (TOML, docs/study-file.md) into a :class:`~sinkopt.model.problem.Problem` in SI,
 reporting every problem of the file in one :class:`~sinkopt.errors.InputError`.
 
 Search variables and their names
@@ -28,12 +28,12 @@ import re
 import tomllib
 from pathlib import Path
 
-from sinkopt import catalogs
-from sinkopt.design import Conditions, Device, ModelOptions, MountingStack, SlabLayer, ViaLayer
+from sinkopt.study import catalogs
+from sinkopt.model.design import Conditions, Device, ModelOptions, MountingStack, SlabLayer, ViaLayer
 from sinkopt.errors import InputError
-from sinkopt.problem import (DEFAULT_SAMPLER, GEOMETRY_VARIABLES, OBJECTIVES, SAMPLERS, AirSupply,
+from sinkopt.model.problem import (DEFAULT_SAMPLER, GEOMETRY_VARIABLES, OBJECTIVES, SAMPLERS, AirSupply,
                              FanOption, Limits, Problem, ProcessLimits, Variable, fan_label)
-from sinkopt.study_schema import (PROCESS_KEYS, PROCESS_PRESETS, Problems, Table, cross_check,
+from sinkopt.study.schema import (PROCESS_KEYS, PROCESS_PRESETS, Problems, Table, cross_check,
                                   item_path, join_path, read_impedance_curve, resolve_files, show,
                                   span)
 

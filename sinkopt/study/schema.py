@@ -1,5 +1,5 @@
 """Building blocks of the study-file check: the problem list, dotted paths, typed key readers,
-process presets and the reader of measured impedance curves. :mod:`sinkopt.study_file` uses them.
+process presets and the reader of measured impedance curves. :mod:`sinkopt.study.reader` uses them.
 
 Every reader records what is wrong in a :class:`Problems` list and returns ``None`` instead of
 raising, so that one pass over the file reports every problem at once (docs/study-file.md).
@@ -28,7 +28,7 @@ from typing import Any, Iterable
 
 from sinkopt.errors import InputError
 from sinkopt.fans.units import lookup_unit, parse_column, unit_choices
-from sinkopt.problem import OBJECTIVES
+from sinkopt.model.problem import OBJECTIVES
 
 __all__ = [
     "Problems",

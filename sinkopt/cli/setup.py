@@ -43,10 +43,10 @@ def _g(x: float) -> str:
 
 
 def describe_problem(problem) -> list[str]:
-    """Lines describing a resolved :class:`~sinkopt.problem.Problem` in SI units."""
-    from sinkopt.model import inlet_air
-    from sinkopt.problem import GEOMETRY_VARIABLES, OBJECTIVES
-    from sinkopt.study_file import fan_choices
+    """Lines describing a resolved :class:`~sinkopt.model.problem.Problem` in SI units."""
+    from sinkopt.model.known_flow import inlet_air
+    from sinkopt.model.problem import GEOMETRY_VARIABLES, OBJECTIVES
+    from sinkopt.study.reader import fan_choices
 
     c = problem.conditions
     air = inlet_air(c)
@@ -137,7 +137,7 @@ def describe_problem(problem) -> list[str]:
 
 
 def cmd_check(args) -> int:
-    from sinkopt.study_file import load_study
+    from sinkopt.study.reader import load_study
 
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
@@ -175,11 +175,11 @@ footprint_y_mm = 21
 
   [[device.mounting]]
   name = "pad"
-  interface = "insulating-pad"   # from catalogs/interfaces.csv
+  interface = "insulating-pad"   # a built-in interface material (docs/study-file.md lists them)
   contact_area_mm2 = 220
 
 [sink]
-material = "al6063-t5"   # from catalogs/materials.csv
+material = "al6063-t5"   # a built-in material (docs/study-file.md lists them)
 process = "extruded"
 width_mm = [50, 120]     # [low, high] is searched, a number is fixed
 length_mm = [40, 120]

@@ -20,8 +20,8 @@ from typing import Any
 import numpy as np
 
 from sinkopt import __version__
-from sinkopt.problem import Problem
-from sinkopt.results import Results, SCHEMA_VERSION
+from sinkopt.model.problem import Problem
+from sinkopt.results.collect import Results, SCHEMA_VERSION
 
 __all__ = ["write_results", "write_json", "redact_url", "run_info", "sha256_file",
            "trials_frame", "pareto_frame"]

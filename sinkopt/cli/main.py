@@ -1,6 +1,6 @@
 """Command line: ``sinkopt <command> ...`` (also ``python -m sinkopt``).
 
-Each command lives in its own module under :mod:`sinkopt.commands` and exposes
+Each command lives in its own module under :mod:`sinkopt.cli` and exposes
 ``register(subparsers)``; heavy libraries are imported inside the command functions so that
 ``--help`` stays fast.
 
@@ -21,8 +21,8 @@ __all__ = ["main", "build_parser", "EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "EX
            "EXIT_INTERRUPTED"]
 
 
-# Modules under sinkopt.commands that provide ``register(subparsers)``.
-COMMAND_MODULES = ("fan", "study_commands", "setup", "worker_command", "report_command")
+# Modules under sinkopt.cli that provide ``register(subparsers)``.
+COMMAND_MODULES = ("fan", "study", "setup", "worker", "report")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -38,9 +38,9 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMAND_MODULES:
         try:
-            module = importlib.import_module(f"sinkopt.commands.{name}")
+            module = importlib.import_module(f"sinkopt.cli.{name}")
         except ModuleNotFoundError as exc:  # a command module not written yet
-            if exc.name != f"sinkopt.commands.{name}":
+            if exc.name != f"sinkopt.cli.{name}":
                 raise
             continue
         module.register(sub)

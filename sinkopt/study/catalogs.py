@@ -1,6 +1,10 @@
-"""Loading the small data catalogs shipped in ``catalogs/`` (materials, interface materials).
+"""The built-in catalogs (materials, interface materials, the invented demo fans).
 
-Each file is a CSV with ``#`` comment lines on top saying where the numbers come from.
+They ship inside the package (``sinkopt/study/builtin/``) and are read with
+:mod:`importlib.resources`, so an installed wheel finds them without the source tree. The
+repository's top-level ``catalogs/`` folder is the user-visible copy of the same files (a test
+keeps the two identical). Each file is a CSV with ``#`` comment lines on top saying where the
+numbers come from.
 """
 from __future__ import annotations
 
@@ -8,15 +12,18 @@ import csv
 import difflib
 from dataclasses import dataclass
 from functools import lru_cache
-from pathlib import Path
+from importlib import resources
+from importlib.resources.abc import Traversable
 
 from sinkopt.errors import InputError
 
-__all__ = ["CATALOG_DIR", "Material", "Interface", "materials", "interfaces", "material",
+__all__ = ["builtin_catalog", "Material", "Interface", "materials", "interfaces", "material",
            "interface"]
 
-#: The repository's catalogs folder (shipped next to the package).
-CATALOG_DIR = Path(__file__).resolve().parent.parent / "catalogs"
+
+def builtin_catalog() -> Traversable:
+    """The folder of built-in catalog files inside the installed package."""
+    return resources.files("sinkopt.study").joinpath("builtin")
 
 
 @dataclass(frozen=True)
@@ -34,7 +41,7 @@ class Interface:
     note: str = ""
 
 
-def _rows(path: Path):
+def _rows(path: Traversable):
     with path.open(encoding="utf-8-sig") as fh:
         lines = [ln for ln in fh if not ln.lstrip().startswith("#") and ln.strip()]
     return list(csv.DictReader(lines))
@@ -45,7 +52,7 @@ def materials() -> dict[str, Material]:
     """All sink materials by name."""
     return {r["name"]: Material(r["name"], float(r["conductivity_W_per_mK"]),
                                 float(r["density_kg_per_m3"]), r.get("note", ""))
-            for r in _rows(CATALOG_DIR / "materials.csv")}
+            for r in _rows(builtin_catalog() / "materials.csv")}
 
 
 @lru_cache(maxsize=None)
@@ -53,7 +60,7 @@ def interfaces() -> dict[str, Interface]:
     """All interface materials by name (specific resistance converted from K cm^2/W to SI)."""
     return {r["name"]: Interface(r["name"], float(r["specific_resistance_K_cm2_per_W"]) * 1e-4,
                                  r.get("note", ""))
-            for r in _rows(CATALOG_DIR / "interfaces.csv")}
+            for r in _rows(builtin_catalog() / "interfaces.csv")}
 
 
 def _lookup(table: dict, name: str, kind: str, field: str | None):

@@ -59,7 +59,7 @@ def _load(path: Path, warnings_out: list[str] | None = None):
     when ``warnings_out`` is given, collected for run.json."""
     import warnings
 
-    from sinkopt.study_file import load_study
+    from sinkopt.study.reader import load_study
 
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
@@ -117,8 +117,8 @@ def parse_set(problem, items: list[str]) -> dict:
 
 
 def cmd_evaluate(args) -> int:
-    from sinkopt.results import design_record
-    from sinkopt.system import evaluate_params
+    from sinkopt.results.collect import design_record
+    from sinkopt.model.system import evaluate_params
 
     problem = _load(args.study)
     params = parse_set(problem, [s for group in args.sets for s in group])
@@ -213,9 +213,10 @@ def cmd_run(args) -> int:
 
     import optuna
 
-    from sinkopt.results import collect_results
-    from sinkopt.results_io import run_info, write_results
-    from sinkopt.search import DEFAULT_BATCH, fail_stale_trials, open_study, run_search, storage_for
+    from sinkopt.results.collect import collect_results
+    from sinkopt.results.files import run_info, write_results
+    from sinkopt.search.optuna_search import DEFAULT_BATCH, fail_stale_trials, open_study, run_search
+    from sinkopt.search.storage import storage_for
 
     input_warnings: list[str] = []
     problem = _load(args.study, input_warnings)
@@ -238,7 +239,7 @@ def cmd_run(args) -> int:
     interrupted = False
     try:
         if args.workers > 1:
-            from sinkopt.workers import run_local_workers
+            from sinkopt.search.workers import run_local_workers
             run_local_workers(problem, study, args.study, n_workers=args.workers,
                               n_trials=n_trials, seed=seed, sampler=sampler, out=out,
                               storage_url=args.storage, batch=args.batch, timeout=args.timeout,
@@ -261,7 +262,7 @@ def cmd_run(args) -> int:
     write_results(results, out, info)
     if not args.no_report:
         try:
-            from sinkopt.report import write_report
+            from sinkopt.results.report import write_report
         except ImportError:
             write_report = None
         if write_report is not None:

@@ -1,6 +1,6 @@
 """Data of the HTML report: plain, JSON-ready dicts and lists built from a study's results.
 
-Nothing here draws or imports plotly; :mod:`sinkopt.report` turns these into figures and the page.
+Nothing here draws or imports plotly; :mod:`sinkopt.results.report` turns these into figures and the page.
 Quantities stay in SI (flows in m^3/s) unless the key names another unit (``_mm``, ``_cm3``);
 values that do not exist (no operating point, a geometry that cannot exist) are ``None``.
 
@@ -16,12 +16,12 @@ from typing import Any, Sequence
 
 import numpy as np
 
-from sinkopt.design import SinkGeometry
+from sinkopt.model.design import SinkGeometry
 from sinkopt.fans import FanArray
-from sinkopt.model import inlet_air
-from sinkopt.problem import GEOMETRY_VARIABLES, OBJECTIVES, Problem
-from sinkopt.results import Results
-from sinkopt.system import PENALTY, evaluate_params, fan_choices, full_params, system_pressure_drop
+from sinkopt.model.known_flow import inlet_air
+from sinkopt.model.problem import GEOMETRY_VARIABLES, OBJECTIVES, Problem
+from sinkopt.results.collect import Results
+from sinkopt.model.system import PENALTY, evaluate_params, fan_choices, full_params, system_pressure_drop
 
 __all__ = [
     "OBJECTIVE_LABELS",

@@ -62,11 +62,11 @@ def register(sub) -> None:
 def cmd_worker(args) -> int:
     import optuna
 
-    from sinkopt.search import _worker_id, open_study, make_sampler, storage_for
-    from sinkopt.study_file import load_study
-    from sinkopt.workers import (DEFAULT_STALE_AFTER_S, STORAGE_ENV, redact_text,
-                                 sampler_seed, graceful_stop,
-                                 tag_new_trials, work)
+    from sinkopt.search.optuna_search import _worker_id, make_sampler, open_study
+    from sinkopt.search.storage import STORAGE_ENV, redact_text, storage_for
+    from sinkopt.search.workers import (DEFAULT_STALE_AFTER_S, graceful_stop, sampler_seed,
+                                        tag_new_trials, work)
+    from sinkopt.study.reader import load_study
 
     url = args.storage or os.environ.get(STORAGE_ENV) or None
     problem = load_study(args.study)

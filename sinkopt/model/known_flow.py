@@ -11,12 +11,12 @@ from typing import Sequence
 
 import numpy as np
 
-from sinkopt.design import Conditions, Device, ModelOptions, SinkGeometry
+from sinkopt.model.design import Conditions, Device, ModelOptions, SinkGeometry
 from sinkopt.physics import geometry as geo
 from sinkopt.physics import heatsink as hs
 from sinkopt.physics import spreading as sp
 from sinkopt.physics.air import air_properties, pressure_standard_atmosphere_1976
-from sinkopt.validity import describe, out_of_range
+from sinkopt.model.validity import describe, out_of_range
 
 __all__ = ["Evaluation", "evaluate", "inlet_air", "stack_resistances", "upstream_heat_fraction"]
 
@@ -109,7 +109,7 @@ def evaluate(geometry: SinkGeometry, flow, devices: Sequence[Device], conductivi
     Parameters
     ----------
     geometry : SinkGeometry
-        n geometries (checked beforehand with :func:`sinkopt.design.check_geometry`).
+        n geometries (checked beforehand with :func:`sinkopt.model.design.check_geometry`).
     flow : array_like
         Volume flow through the fin channels per design [m^3/s]; NaN where the fan found no
         operating point (results are NaN there).

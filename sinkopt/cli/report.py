@@ -60,11 +60,11 @@ def find_study_file(out_dir: Path, info: dict) -> list[Path]:
 def cmd_report(args) -> int:
     import optuna
 
-    from sinkopt.report import write_report
-    from sinkopt.results import collect_results
-    from sinkopt.results_io import sha256_file
-    from sinkopt.search import STUDY_JOURNAL, storage_for
-    from sinkopt.study_file import load_study
+    from sinkopt.results.report import write_report
+    from sinkopt.results.collect import collect_results
+    from sinkopt.results.files import sha256_file
+    from sinkopt.search.storage import STUDY_JOURNAL, storage_for
+    from sinkopt.study.reader import load_study
 
     out_dir: Path = args.results_dir
     if not out_dir.is_dir():

@@ -1,4 +1,4 @@
-"""Evaluate a batch of candidate designs of a :class:`~sinkopt.problem.Problem`: sink geometry,
+"""Evaluate a batch of candidate designs of a :class:`~sinkopt.model.problem.Problem`: sink geometry,
 fan operating point on the system curve, per-device junction temperatures, objectives and
 constraints. This is what the search calls once per batch of trials, vectorised.
 
@@ -14,13 +14,13 @@ from typing import Any, Sequence
 
 import numpy as np
 
-from sinkopt.design import ModelOptions, SinkGeometry
+from sinkopt.model.design import ModelOptions, SinkGeometry
 from sinkopt.fans import FanArray
 from sinkopt.fans.operating_point import solve_operating_points
-from sinkopt.model import Evaluation, evaluate, inlet_air
+from sinkopt.model.known_flow import Evaluation, evaluate, inlet_air
 from sinkopt.physics import heatsink as hs
 from sinkopt.physics.bypass import flow_fraction_lossless_bypass
-from sinkopt.problem import GEOMETRY_VARIABLES, OBJECTIVES, FanOption, Problem
+from sinkopt.model.problem import GEOMETRY_VARIABLES, OBJECTIVES, FanOption, Problem
 
 __all__ = ["BatchResult", "evaluate_params", "fan_choices", "full_params", "to_columns",
            "PENALTY", "system_pressure_drop"]

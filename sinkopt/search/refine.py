@@ -24,9 +24,9 @@ from typing import Any
 import numpy as np
 from scipy.stats import qmc
 
-from sinkopt.pareto import nondominated_mask, to_minimization
-from sinkopt.problem import OBJECTIVES, Problem
-from sinkopt.system import evaluate_params
+from sinkopt.search.pareto import nondominated_mask, to_minimization
+from sinkopt.model.problem import OBJECTIVES, Problem
+from sinkopt.model.system import evaluate_params
 
 __all__ = ["Encoder", "FrontRefiner"]
 
