@@ -38,6 +38,52 @@ def register(subparsers) -> None:
 
 
 # ---- check -------------------------------------------------------------------------------------
+def _range(problem, name: str) -> tuple[float, float]:
+    """(low, high) of a geometry variable in SI (its fixed value twice)."""
+    v = next(v for v in problem.variables if v.name == name)
+    lo, hi = (v.fixed, v.fixed) if v.is_fixed else (v.low, v.high)
+    return float(lo) * 1e-3, float(hi) * 1e-3
+
+
+def _approach_lines(problem) -> list[str]:
+    """The flow a known approach velocity carries, and the face it acts on."""
+    a = problem.air
+    w, h, tb = (_range(problem, n) for n in ("width_mm", "fin_height_mm", "base_thickness_mm"))
+    q_lo, q_hi = (a.approach_flow(w[i], h[i], tb[i]) for i in (0, 1))
+    if not a.ducted:
+        face = f"the duct section {_g(a.duct_area_m2)} m² (part of it bypasses the fins)"
+    elif a.base_in_airstream:
+        face = "the sink's whole face W × (fin height + base) (base_in_airstream = true)"
+    else:
+        face = "the fin region W × fin height (base flush with a wall or board)"
+    span = (f"{_g(q_lo)} m³/s ({q_lo * 3600:.4g} m³/h)" if q_lo == q_hi else
+            f"{_g(q_lo)} … {_g(q_hi)} m³/s ({q_lo * 3600:.4g} … {q_hi * 3600:.4g} m³/h) "
+            "over the geometry ranges")
+    return [f"  known approach velocity {a.approach_velocity_m_s:g} m/s over {face}",
+            f"  resulting flow {span}"]
+
+
+def _duct_lines(problem) -> list[str]:
+    a = problem.air
+    if a.ducted:
+        return ["  ducted: all the air passes between the fins"]
+    w, h, tb = (_range(problem, n) for n in ("width_mm", "fin_height_mm", "base_thickness_mm"))
+    blocked = [w[i] * (h[i] + (tb[i] if a.base_in_airstream else 0.0)) for i in (0, 1)]
+    free = [a.duct_area_m2 - b for b in blocked]
+    out = [f"  not ducted: lossless bypass in a duct of {_g(a.duct_area_m2)} m²; the sink blocks "
+           f"{_g(blocked[0])} … {_g(blocked[1])} m² "
+           f"({'fins and base' if a.base_in_airstream else 'fin region; base flush with a wall'}),"
+           f" leaving {_g(max(free[1], 0.0))} … {_g(max(free[0], 0.0))} m² to bypass"]
+    if a.duct_width_m is not None and a.duct_height_m is not None:
+        out.append(f"  duct {a.duct_width_m * 1e3:g} × {a.duct_height_m * 1e3:g} mm: side clearance "
+                   f"{(a.duct_width_m - w[1]) * 1e3:.3g} … {(a.duct_width_m - w[0]) * 1e3:.3g} mm, "
+                   f"clearance above the fin tips "
+                   f"{(a.duct_height_m - h[1] - (tb[1] if a.base_in_airstream else 0)) * 1e3:.3g}"
+                   f" … {(a.duct_height_m - h[0] - (tb[0] if a.base_in_airstream else 0)) * 1e3:.3g}"
+                   " mm")
+    return out
+
+
 def _g(x: float) -> str:
     return f"{x:.4g}"
 
@@ -104,9 +150,8 @@ def describe_problem(problem) -> list[str]:
     elif a.fixed_flow_m3_s is not None:
         out.append(f"  known flow {_g(a.fixed_flow_m3_s)} m³/s ({a.fixed_flow_m3_s * 3600:.4g} m³/h)")
     else:
-        out.append(f"  known approach velocity {a.approach_velocity_m_s:g} m/s")
-    out.append("  ducted" if a.ducted else
-               f"  not ducted: bypass in a duct of {_g(a.duct_area_m2)} m²")
+        out += _approach_lines(problem)
+    out += _duct_lines(problem)
     if a.extra_loss_area_m2 is not None:
         out.append(f"  extra loss K = {a.extra_loss_coefficient:g} at {_g(a.extra_loss_area_m2)} m²")
     if a.extra_impedance is not None:

@@ -147,6 +147,11 @@ class ModelOptions:
     #: devices' heat included); ``lumped``: one inlet-referenced sink resistance (physics.md §8).
     air_heating: str = "local"
     series_terms: int = 300
+    #: Calibration multipliers from a prototype's measurements (``sinkopt calibrate``); 1 = the
+    #: published correlations as they are (docs/theory.md#calibration-from-measurements).
+    heat_transfer_multiplier: float = 1.0
+    friction_multiplier: float = 1.0
+    loss_multiplier: float = 1.0
 
 
 def _first_bad(mask: np.ndarray) -> int:

@@ -137,10 +137,11 @@ def evaluate(geometry: SinkGeometry, flow, devices: Sequence[Device], conductivi
     flow = np.broadcast_to(np.asarray(flow, dtype=float), (n,))
     air = inlet_air(conditions)
     hyd = hs.sink_hydraulics(g.width, g.length, g.fin_height, g.fin_thickness, g.n_fins, flow,
-                             air, options.hydraulic_diameter, options.exit_loss)
+                             air, options.hydraulic_diameter, options.exit_loss,
+                             options.friction_multiplier, options.loss_multiplier)
     th = hs.sink_thermal(g.width, g.length, g.fin_height, g.fin_thickness, g.n_fins, flow, air,
                          conductivity, options.heat_transfer, options.fin_tip,
-                         options.hydraulic_diameter)
+                         options.hydraulic_diameter, options.heat_transfer_multiplier)
     power = np.array([d.power for d in devices], dtype=float)
     s = len(devices)
     total_power = power.sum()

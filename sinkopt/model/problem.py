@@ -106,13 +106,32 @@ class AirSupply:
     extra_impedance: tuple[tuple[float, ...], tuple[float, ...]] | None = None
     extra_impedance_density: float = 1.2
     ducted: bool = True
-    #: Duct cross-section around an unducted sink (bypass model), [m^2].
+    #: Duct cross-section around an unducted sink (bypass model), [m^2], and its sides [m].
     duct_area_m2: float | None = None
+    duct_width_m: float | None = None
+    duct_height_m: float | None = None
+    #: The base stands in the air stream (a sink in a wind tunnel, on a strut) rather than flush
+    #: with a duct wall or a board: the face an approach velocity acts on, and the section the
+    #: sink blocks in a duct, include the base (docs/theory.md#approach-velocity-and-duct-section).
+    base_in_airstream: bool = False
     failed_fan_check: bool = False  #: also evaluate with one fan of the array stopped
 
     @property
     def uses_fans(self) -> bool:
         return bool(self.fans)
+
+    def approach_flow(self, width, fin_height, base_thickness):
+        """Volume flow [m^3/s] carried by the given approach velocity.
+
+        Ducted: the velocity acts on the sink's face, the fin region W × H, or W × (H + t_b)
+        with ``base_in_airstream``. Unducted: it is the duct's mean velocity over the whole duct
+        section, of which the bypass model then sends part around the fins.
+        """
+        v = self.approach_velocity_m_s
+        if not self.ducted:
+            return v * self.duct_area_m2 + 0.0 * width
+        face = fin_height + (base_thickness if self.base_in_airstream else 0.0)
+        return v * width * face
 
     def fan_choices(self) -> dict[str, tuple["FanOption", int]]:
         """Every ``fan`` label, in order, with its fan option and count."""

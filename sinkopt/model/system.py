@@ -123,13 +123,15 @@ def system_pressure_drop(problem: Problem, geometry: SinkGeometry, q, air, optio
     def sink_dp(q_fins):
         return hs.sink_hydraulics(g.width, g.length, g.fin_height, g.fin_thickness, g.n_fins,
                                   q_fins, air, options.hydraulic_diameter,
-                                  options.exit_loss).pressure_drop
+                                  options.exit_loss, options.friction_multiplier,
+                                  options.loss_multiplier).pressure_drop
 
     if problem.air.ducted:
         q_fins = q
     else:
         q_fins = q * flow_fraction_lossless_bypass(sink_dp, g, q, problem.air.duct_area_m2,
-                                                   air.density)
+                                                   air.density,
+                                                   base_in_airstream=problem.air.base_in_airstream)
     return sink_dp(q_fins) + _impedance_dp(problem, q, air.density), q_fins
 
 
@@ -273,7 +275,8 @@ def _system_dp_function(problem: Problem, g: SinkGeometry, air, options: ModelOp
     sinks ``g`` (designs ``index`` of them, or all) with the geometry-only work done once."""
     sink_dp = hs.sink_pressure_drop_function(g.width, g.length, g.fin_height, g.fin_thickness,
                                              g.n_fins, air, options.hydraulic_diameter,
-                                             options.exit_loss)
+                                             options.exit_loss, options.friction_multiplier,
+                                             options.loss_multiplier)
     a = problem.air
     extra = bool((a.extra_loss_coefficient and a.extra_loss_area_m2)
                  or a.extra_impedance is not None)
@@ -294,7 +297,8 @@ def _system_dp_function(problem: Problem, g: SinkGeometry, air, options: ModelOp
             q_fins = q
         else:
             q_fins = q * flow_fraction_lossless_bypass(lambda qf: sink_dp(qf, index), sub(index),
-                                                       q, a.duct_area_m2, density)
+                                                       q, a.duct_area_m2, density,
+                                                       base_in_airstream=a.base_in_airstream)
         dp = sink_dp(q_fins, index)
         return dp + _impedance_dp(problem, q, density) if extra else dp
 
@@ -388,9 +392,7 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None) -> B
         if problem.air.fixed_flow_m3_s is not None:
             flow = np.full(n, problem.air.fixed_flow_m3_s)
         else:
-            # Approach velocity over the fin region's face W x H (the Culham & Muzychka
-            # convention, validation.md §D).
-            flow = problem.air.approach_velocity_m_s * safe.width * safe.fin_height
+            flow = problem.air.approach_flow(safe.width, safe.fin_height, safe.base_thickness)
         dp, flow_fins = system_pressure_drop(problem, safe, flow, air, options)
         power = np.zeros(n)
         noise = np.full(n, np.nan)

@@ -1,6 +1,6 @@
 """Flow bypass around a sink that does not fill its duct: the lossless-bypass model.
 
-**Lower confidence** than the fully ducted model: physics.md §6 labels it ±30 % (from memory).
+**Lower confidence** than the fully ducted model: docs/theory.md#flow-bypass labels it ±30 % (from memory).
 """
 from __future__ import annotations
 
@@ -12,7 +12,8 @@ __all__ = ["flow_fraction_lossless_bypass"]
 
 
 def flow_fraction_lossless_bypass(sink_dp: Callable[[np.ndarray], np.ndarray], geometry,
-                                  flow_total, duct_area, density, iterations: int = 60):
+                                  flow_total, duct_area, density, iterations: int = 60,
+                                  base_in_airstream: bool = False):
     r"""Fraction of a duct's flow that passes through the fins when the rest bypasses them.
 
     The two streams leave a common inlet plenum and re-merge at equal static pressure, the
@@ -22,7 +23,8 @@ def flow_fraction_lossless_bypass(sink_dp: Callable[[np.ndarray], np.ndarray], g
     .. math:: Q = V_f A_f + V_b A_b, \qquad \Delta p_{hs}(V_f A_f) = \tfrac12\rho(V_b^2 - V_f^2)
 
     with A_f = (N − 1) b H the free area between the fins and A_b = A_duct − W H the duct area
-    beside and above the fin region.
+    beside and above the fin region (A_duct − W (H + t_b) when the base stands in the duct's
+    section too, ``base_in_airstream``).
 
     Parameters
     ----------
@@ -36,6 +38,9 @@ def flow_fraction_lossless_bypass(sink_dp: Callable[[np.ndarray], np.ndarray], g
         Duct cross-section around the sink [m^2]; must exceed W H.
     density : float
         Air density [kg/m^3].
+    base_in_airstream : bool
+        The base blocks part of the duct's section (a sink standing in a wind tunnel), rather
+        than lying flush with a duct wall or a board.
 
     Returns
     -------
@@ -65,7 +70,8 @@ def flow_fraction_lossless_bypass(sink_dp: Callable[[np.ndarray], np.ndarray], g
     q = np.asarray(flow_total, dtype=float)
     g = geometry
     a_fins = (g.n_fins - 1) * (g.width - g.n_fins * g.fin_thickness) / (g.n_fins - 1) * g.fin_height
-    a_bypass = duct_area - g.width * g.fin_height
+    blocked = g.width * (g.fin_height + (g.base_thickness if base_in_airstream else 0.0))
+    a_bypass = duct_area - blocked
     if np.all(a_bypass <= 0):
         return np.ones_like(q)
     a_bypass = np.maximum(a_bypass, 1e-12)
@@ -78,4 +84,4 @@ def flow_fraction_lossless_bypass(sink_dp: Callable[[np.ndarray], np.ndarray], g
         r = sink_dp(x * q) - 0.5 * density * (v_b**2 - v_f**2)
         hi = np.where(r > 0, x, hi)
         lo = np.where(r > 0, lo, x)
-    return np.where(duct_area - g.width * g.fin_height > 0, 0.5 * (lo + hi), 1.0)
+    return np.where(duct_area - blocked > 0, 0.5 * (lo + hi), 1.0)

@@ -77,7 +77,8 @@ def _check_option(name, value, allowed):
 
 
 def sink_hydraulics(width, length, fin_height, fin_thickness, n_fins, flow, air: AirProperties,
-                    hydraulic_diameter="parallel_plates", exit_loss="culham_muzychka") -> Hydraulics:
+                    hydraulic_diameter="parallel_plates", exit_loss="culham_muzychka",
+                    friction_multiplier=1.0, loss_multiplier=1.0) -> Hydraulics:
     """Pressure drop of the fin array at a volume flow through the fins.
 
     Parameters
@@ -94,6 +95,10 @@ def sink_hydraulics(width, length, fin_height, fin_thickness, n_fins, flow, air:
         One of :data:`HYDRAULIC_DIAMETERS`.
     exit_loss : str
         One of :data:`sinkopt.physics.pressure_drop.EXIT_LOSS_MODELS`.
+    friction_multiplier, loss_multiplier : float
+        Calibration factors [-] on the channel friction factor (laminar and turbulent) and on
+        the entrance + exit loss coefficients K_c + K_e; 1 without calibration
+        (docs/theory.md#calibration-from-measurements).
 
     Notes
     -----
@@ -125,17 +130,18 @@ def sink_hydraulics(width, length, fin_height, fin_thickness, n_fins, flow, air:
     l_plus = length / (dh * re)
     f_lam = pd_.friction_apparent_developing_muzychka_yovanovich_2009(l_plus, fre) / re
     sigma = geo.open_area_ratio(width, n_fins, fin_thickness)
-    kc = pd_.contraction_loss_culham_muzychka_2001(sigma)
-    ke = pd_.EXIT_LOSS_MODELS[exit_loss](sigma)
+    kc = pd_.contraction_loss_culham_muzychka_2001(sigma) * loss_multiplier
+    ke = pd_.EXIT_LOSS_MODELS[exit_loss](sigma) * loss_multiplier
+    f_lam = f_lam * friction_multiplier
     dynamic = 0.5 * air.density * velocity**2
     dp = (kc + 4.0 * f_lam * length / dh + ke) * dynamic
-    dp = _blend_turbulent(dp, re, kc + ke, length / dh, dynamic)
+    dp = _blend_turbulent(dp, re, kc + ke, length / dh, dynamic, friction_multiplier)
     with np.errstate(divide="ignore", invalid="ignore"):  # zero flow: f_app undefined (NaN)
         f_app = (dp / dynamic - kc - ke) * dh / (4.0 * length)
     return Hydraulics(b, velocity, dh, re, l_plus, f_app, kc, ke, dp)
 
 
-def _blend_turbulent(dp_lam, re, k_minor, l_over_dh, dynamic):
+def _blend_turbulent(dp_lam, re, k_minor, l_over_dh, dynamic, friction_multiplier=1.0):
     """Blend the turbulent pressure drop in where Re_Dh > 2300 (see :func:`sink_hydraulics`).
 
     ``dp = (1 − w) dp_lam + w (dp_lam⁵ + dp_turb⁵)^(1/5)``; w = 0 gives exactly ``dp_lam``, so
@@ -156,7 +162,7 @@ def _blend_turbulent(dp_lam, re, k_minor, l_over_dh, dynamic):
                                    for x in parts)
     re_t = re[turb]
     lam = dp_lam[turb]
-    f_turb = pd_.friction_fanning_turbulent_smooth(re_t)  # re_t > 2300: no floor needed
+    f_turb = pd_.friction_fanning_turbulent_smooth(re_t) * friction_multiplier  # re_t > 2300
     turbulent = (k_minor + 4.0 * f_turb * l_over_dh) * dynamic
     w = cv.transition_weight(re_t)
     out = np.array(dp_lam, dtype=float, copy=True)
@@ -166,7 +172,8 @@ def _blend_turbulent(dp_lam, re, k_minor, l_over_dh, dynamic):
 
 def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins,
                                 air: AirProperties, hydraulic_diameter="parallel_plates",
-                                exit_loss="culham_muzychka"):
+                                exit_loss="culham_muzychka", friction_multiplier=1.0,
+                                loss_multiplier=1.0):
     r"""``Δp(flow)`` of fixed fin arrays: :func:`sink_hydraulics`'s pressure drop, with every
     geometry- and air-only quantity computed once.
 
@@ -185,6 +192,8 @@ def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins
     ----------
     width, length, fin_height, fin_thickness, n_fins, air, hydraulic_diameter, exit_loss
         As :func:`sink_hydraulics` (arrays broadcast to the n designs) [m], [-].
+    friction_multiplier, loss_multiplier : float
+        Calibration factors [-], as :func:`sink_hydraulics`.
 
     Returns
     -------
@@ -215,17 +224,18 @@ def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins
     fre = cv.fre_rectangular_duct_shah_london_1978(np.minimum(b, h) / np.maximum(b, h))
     l_over_dh = length / dh
     sigma = geo.open_area_ratio(width, n_fins, fin_thickness)
-    k_minor = pd_.contraction_loss_culham_muzychka_2001(sigma) + pd_.EXIT_LOSS_MODELS[exit_loss](sigma)
+    k_minor = (pd_.contraction_loss_culham_muzychka_2001(sigma)
+               + pd_.EXIT_LOSS_MODELS[exit_loss](sigma)) * loss_multiplier
     dyn_per_flow2 = 0.5 * air.density * inv_area * inv_area
     # laminar: Δp = a Q² + c Q √(d Q + f²), with Re = r Q:
     #   a = (K_c + K_e) ρ/(2A²), c = 4 (L/D_h) ρ/(2A²)/r, d = 3.44² r/(L/D_h), f = f·Re
     quad = k_minor * dyn_per_flow2
-    root_mult = 4.0 * l_over_dh * dyn_per_flow2 / re_per_flow
+    root_mult = 4.0 * l_over_dh * dyn_per_flow2 / re_per_flow * friction_multiplier
     root_lin = 3.44**2 / l_over_dh * re_per_flow
     fre2 = fre * fre
     # turbulent branch (Petukhov f): Δp_turb = (K_c + K_e + 4 f L/D_h) ρ/(2A²) Q² = (a + f m) Q²
     # with m = 4 (L/D_h) ρ/(2A²)
-    turb_mult = 4.0 * l_over_dh * dyn_per_flow2
+    turb_mult = 4.0 * l_over_dh * dyn_per_flow2 * friction_multiplier
     consts = np.broadcast_arrays(quad, root_mult, root_lin, fre2, re_per_flow, turb_mult)
     scalar = consts[0].ndim == 0
     cache: list = [None, None]  # the last index object and the constants gathered for it
@@ -248,7 +258,8 @@ def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins
         if dp.ndim == 0:
             if not re > re_start:
                 return dp[()]
-            return _blend_turbulent(dp, re, k_minor, l_over_dh, dyn_per_flow2 * q2)
+            return _blend_turbulent(dp, re, k_minor, l_over_dh, dyn_per_flow2 * q2,
+                                    friction_multiplier)
         if q.shape != dp.shape:
             q2 = np.broadcast_to(q2, dp.shape)
             re = np.broadcast_to(re, dp.shape)
@@ -275,7 +286,7 @@ def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins
 
 def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: AirProperties,
                  conductivity, heat_transfer="teertstra", fin_tip="adiabatic",
-                 hydraulic_diameter="parallel_plates") -> Thermal:
+                 hydraulic_diameter="parallel_plates", heat_transfer_multiplier=1.0) -> Thermal:
     """Thermal resistance from the sink base (assumed isothermal) to the inlet air.
 
     Parameters
@@ -296,6 +307,11 @@ def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: Ai
         One of :data:`FIN_TIPS`.
     hydraulic_diameter : str
         Length scale of the turbulent branch (Gnielinski), one of :data:`HYDRAULIC_DIAMETERS`.
+    heat_transfer_multiplier : float
+        Calibration factor [-] on the channel heat transfer coefficient (laminar and
+        turbulent); 1 without calibration (docs/theory.md#calibration-from-measurements). The
+        inlet-referenced conductance never exceeds ṁ c_p (the air cannot leave hotter than
+        the base).
 
     Notes
     -----
@@ -347,12 +363,15 @@ def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: Ai
     sqrt_area = np.sqrt(b * h_fin)
     z_star = length / (sqrt_area * (velocity * sqrt_area / nu_kin) * pr)
     if heat_transfer == "teertstra":
-        h_lam = cv.nu_plate_fin_teertstra_2000(re_b_star, pr) * air.conductivity / b
+        h_lam = (cv.nu_plate_fin_teertstra_2000(re_b_star, pr) * air.conductivity / b
+                 * heat_transfer_multiplier)
         g_lam, eta_lam = finned_conductance(h_lam)
+        if heat_transfer_multiplier != 1.0:
+            g_lam = np.minimum(g_lam, mcp)
     else:
         aspect = np.minimum(b, h_fin) / np.maximum(b, h_fin)
         nu = cv.nu_sqrt_area_developing_muzychka_yovanovich_2004(z_star, pr, aspect)
-        h_lam = nu * air.conductivity / sqrt_area
+        h_lam = nu * air.conductivity / sqrt_area * heat_transfer_multiplier
         ua, eta_lam = finned_conductance(h_lam)
         g_lam = cv.effectiveness_isothermal_wall(ua / mcp) * mcp
 
@@ -364,6 +383,7 @@ def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: Ai
         re_t = np.maximum(re, cv.RE_TRANSITION_START)
         h_turb = cv.nu_turbulent_gnielinski_1976(
             re_t, pr, cv.friction_darcy_smooth_petukhov_1970(re_t)) * air.conductivity / dh
+        h_turb = h_turb * heat_transfer_multiplier
         eta = fn.fin_efficiency_straight_rectangular(fn.fin_parameter(h_turb, k_s, t) * fin_length)
         ua_t = h_turb * (a_base + n * eta * a_fin)
         return h_turb, eta, cv.effectiveness_isothermal_wall(ua_t / mcp) * mcp

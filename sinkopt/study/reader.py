@@ -56,7 +56,8 @@ _VIA_KEYS = ("name", "vias", "via_drill_mm", "via_plating_um", "board_thickness_
              "pad_area_mm2", "copper_W_per_mK", "board_W_per_mK")
 _SINK_KEYS = ("material", "process", *PROCESS_KEYS, *GEOMETRY_VARIABLES)
 _FLOW_KEYS = {"flow_m3_per_h": 1 / 3600, "flow_m3_per_s": 1.0, "flow_cfm": 4.719474432e-4}
-_AIR_KEYS = ("fan", *_FLOW_KEYS, "approach_velocity_m_per_s", "ducted", "duct_width_mm",
+_AIR_KEYS = ("fan", *_FLOW_KEYS, "approach_velocity_m_per_s", "base_in_airstream", "ducted",
+             "duct_width_mm",
              "duct_height_mm", "extra_loss_coefficient", "extra_loss_area_mm2",
              "extra_impedance_file", "failed_fan_check")
 _FAN_KEYS = ("file", "count", "arrangement", "speed", "efficiency")
@@ -400,6 +401,15 @@ def _air(root: Table, base_dir: Path, inputs: list[Path]):
         ok = ok and v is not None
     ducted = t.boolean("ducted", default=True)
     kw["ducted"] = ducted
+    in_stream = t.boolean("base_in_airstream", default=False)
+    kw["base_in_airstream"] = in_stream
+    if in_stream is None:
+        ok = False
+    elif (in_stream and ducted and "approach_velocity_m_per_s" not in data):
+        t.add("base_in_airstream", "matters only with approach_velocity_m_per_s or ducted = false "
+                                   "(it sets the face the velocity acts on, or the section the "
+                                   "sink blocks in its duct)")
+        ok = False
     dw = t.number("duct_width_mm", "mm", minimum=0, exclusive=True)
     dh = t.number("duct_height_mm", "mm", minimum=0, exclusive=True)
     if ducted is False:
@@ -409,6 +419,7 @@ def _air(root: Table, base_dir: Path, inputs: list[Path]):
                             "sink, for the bypass model)")
         if dw is not None and dh is not None:
             kw["duct_area_m2"] = dw * dh * 1e-6
+            kw["duct_width_m"], kw["duct_height_m"] = dw * 1e-3, dh * 1e-3
         else:
             ok = False
     elif ducted:
