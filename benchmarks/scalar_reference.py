@@ -7,17 +7,17 @@ for a ducted sink (no bypass, no extra losses, no failed-fan check), used by
 ``benchmarks/throughput.py`` as a cross-check of the vectorised model and as the speed baseline.
 It never calls sinkopt's physics or fan functions: from sinkopt it takes only *data* (the
 problem's devices, fan-curve points in SI, limits) and the formulas of
-shared/design/physics.md (section numbers below).
+docs/theory.md (sections named below).
 
 Where the libraries are used, and where not:
 
 * air: pressure from ``fluids.atmosphere.ATMOSPHERE_1976``; density, viscosity and conductivity
-  from the dependency-free formulas of physics.md section 1 (the model's choice; CoolProp differs
+  from the dependency-free formulas of docs/theory.md#air-properties (the model's choice; CoolProp differs
   by up to 1.1 %, so it cannot be the reference for agreement to 1e-8).
 * fan curve: ``scipy.interpolate.PchipInterpolator`` on the datasheet points, built once per fan;
   power column by linear interpolation.
 * operating point: ``scipy.optimize.brentq`` on the stable branch, else a knot scan into the
-  stall region (physics.md section 7).
+  stall region (docs/theory.md#fan-operating-point).
 * friction: the laminar apparent friction (Muzychka-Yovanovich composite with the Shah-London
   f Re) and the turbulent Petukhov factor are written out: fluids has neither form (its
   ``friction_factor`` is Clamond's Colebrook solution, 1.9 % off Petukhov at Re = 1e4, which
@@ -26,8 +26,8 @@ Where the libraries are used, and where not:
 * turbulent heat transfer: ``ht.conv_internal.turbulent_Gnielinski`` (with the Petukhov factor);
   effectiveness: ``ht.hx.effectiveness_from_NTU(NTU, Cr=0)``.
 * Teertstra's Nusselt number, K_c, K_e, fin efficiency, Song-Lee-Au and the eccentric-source
-  series have no library form: written scalar from physics.md sections 2d, 3, 4, 5b, 5c. The
-  series is written with the paper's A_m, A_n, A_mn coefficients (section 5b), not with the
+  series have no library form: written scalar from docs/theory.md (Teertstra Nusselt, pressure drop, fin efficiency, spreading sections). The
+  series is written with the paper's A_m, A_n, A_mn coefficients (docs/theory.md#multiple-and-eccentric-sources), not with the
   factorised form the vectorised code uses, so the identity between the two is checked too.
 """
 from __future__ import annotations
@@ -116,7 +116,7 @@ def _darcy_petukhov(re):
 
 
 def _phi(zeta, t, k, h):
-    """Spreading function of physics.md section 5 (tanh form)."""
+    """Spreading function of docs/theory.md#spreading-check-cases (tanh form)."""
     th = math.tanh(zeta * t)
     return (zeta + h / k * th) / (zeta * th + h / k)
 
@@ -165,7 +165,7 @@ class ScalarReference:
                 r += st.interface_specific_resistance / st.contact_area
             self.r_case_base.append(r)
 
-    # ---- sink hydraulics (physics.md sections 2b, 2e, 3) ----------------------------------
+    # ---- sink hydraulics (docs/theory.md#heat-sink-pressure-drop) ------------------
     def sink_dp(self, W, L, H, t, N, Q):
         rho, mu = self.rho, self.mu
         b = (W - N * t) / (N - 1)
@@ -188,7 +188,7 @@ class ScalarReference:
             return dp_lam
         return (1.0 - w) * dp_lam + w * (dp_lam**5 + dp_turb**5) ** 0.2
 
-    # ---- sink thermal (physics.md sections 2d, 2e, 4, 7) ----------------------------------
+    # ---- sink thermal (docs/theory.md#teertstra-composite-nusselt-number) ------------
     def sink_resistance(self, W, L, H, t, N, Q):
         """(R base->inlet air, R without bulk air heating, m cp)."""
         nu, pr, k_air = self.mu / self.rho, self.pr, self.k_air
@@ -222,7 +222,7 @@ class ScalarReference:
         r = 1.0 / g
         return r, max(r - 0.5 / mcp, 0.5 * r), mcp
 
-    # ---- base spreading (physics.md sections 5b, 5c) ---------------------------------------
+    # ---- base spreading (docs/theory.md#spreading-resistance) -------------------------
     def base_rise_song_lee_au(self, W, L, tb, h):
         k = self.k_s
         q_tot = sum(d.power for d in self.devices)
@@ -240,7 +240,7 @@ class ScalarReference:
         return out
 
     def base_rise_series(self, c, dd, tb, h):
-        """Muzychka, Culham & Yovanovich (2003) eccentric sources, superposed (section 5b)."""
+        """Muzychka, Culham & Yovanovich (2003) eccentric sources, superposed (docs/theory.md#multiple-and-eccentric-sources)."""
         k, M = self.k_s, self.terms
         devs = self.devices
         q_tot = sum(d.power for d in devs)
@@ -285,7 +285,7 @@ class ScalarReference:
             theta[j] += sum(an[n] * ry[j][n] for n in range(M))
         return theta
 
-    # ---- fan operating point (physics.md section 7) ----------------------------------------
+    # ---- fan operating point (docs/theory.md#fan-operating-point) ----------------------------------------
     def operating_point(self, fan, count, s, W, L, H, t, N):
         r = self.rho / fan.rho_ref
 

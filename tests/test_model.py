@@ -25,8 +25,8 @@ def ref1(**over):
 
 
 def test_ref1_junction_temperature_through_the_model():
-    # physics.md §8 REF-1: T_j = 64.7230 °C with CoolProp air; the model uses its in-tool air
-    # properties (within 1.5 %, physics.md §1), so 0.5 % on the 39.7 K rise, lumped air heating.
+    # docs/theory.md#ref-1-golden-case REF-1: T_j = 64.7230 °C with CoolProp air; the model uses its in-tool air
+    # properties (within 1.5 %, docs/theory.md#air-properties), so 0.5 % on the 39.7 K rise, lumped air heating.
     ev = evaluate(ref1(), 0.005, [one_device()], 200.0, 2700.0, Conditions(25.0),
                   ModelOptions(spreading="exact", air_heating="lumped"))
     assert ev.junction_C[0, 0] - 25 == pytest.approx(64.7230 - 25, rel=5e-3)

@@ -34,7 +34,7 @@ def test_same_seed_same_trials(scheme):
 
 
 def test_every_trial_sets_every_constraint():
-    # Optuna 5 counts a trial without constraints as feasible (optimizer.md §1).
+    # Optuna 5 counts a trial without constraints as feasible (docs/theory.md#search-and-pareto-front).
     _, trials = _run("tpe-refine", 1, 40)
     names = set(trials[0].constraints)
     assert {"junction_margin_K", "fin_gap_mm", "fin_aspect", "airflow", "fan_stall"} <= names

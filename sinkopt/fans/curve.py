@@ -6,7 +6,7 @@ shape-preserving piecewise cubic Hermite), so between two data points the curve 
 range of those two points: no overshoot. Nothing is extrapolated: outside the data the pressure
 is NaN.
 
-Scaling of one fan (fan laws, e.g. Bleier 1998, *Fan Handbook*, ch. 3; physics.md §7):
+Scaling of one fan (fan laws, e.g. Bleier 1998, *Fan Handbook*, ch. 3; docs/theory.md#fan-operating-point):
 
 .. math::
 
@@ -405,7 +405,7 @@ class FanArray:
 
     Notes
     -----
-    With per-fan flow q of each running fan and its pressure p₁(q) (physics.md §7; derivation in
+    With per-fan flow q of each running fan and its pressure p₁(q) (docs/theory.md#fan-operating-point; derivation in
     docs/fan-curves.md):
 
     - parallel: Δp = p₁(q), Q = (N−f)·q − f·A·√(2Δp/(K_leak·ρ));

@@ -49,7 +49,7 @@ FORMAT_VERSION = "1"
 RECOMMENDED_POINTS = 6
 
 #: An end point may be extended to its axis when it is off that axis by at most this fraction of
-#: the data range (ecosystem.md §1) [-].
+#: the data range (docs/fan-curves.md) [-].
 END_EXTENSION_LIMIT = 0.10
 
 # key -> (kind, unit for messages); kind: "text", "number", "positive"
@@ -178,7 +178,7 @@ def _semicolon_error(line: int, source: str, cell: str) -> InputError:
 
 
 def _extend_ends(q, p, pw, lines, source, units):
-    """Extend an end point that is < 10 % of the range off its axis (ecosystem.md §1), warning."""
+    """Extend an end point that is < 10 % of the range off its axis (docs/fan-curves.md), warning."""
     fu, pu = units
     q_span, p_max = q[-1] - q[0], p.max()
     if p[-1] > 0:

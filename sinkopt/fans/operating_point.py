@@ -1,6 +1,6 @@
 """Operating point of a fan array on a system curve, for a whole batch of designs at once.
 
-Solves Δp_fan(Q) = Δp_sys(Q) (physics.md §7) for n designs in one vectorised pass: every step is
+Solves Δp_fan(Q) = Δp_sys(Q) (docs/theory.md#fan-operating-point) for n designs in one vectorised pass: every step is
 a numpy operation on arrays of shape (n,). :func:`solve_operating_point` solves one fan array
 for every design; :func:`solve_operating_points` gives each design its own fan array out of a
 list (the search's batches mix fans), in the same single pass.
@@ -42,7 +42,7 @@ __all__ = ["OperatingPoint", "solve_operating_point", "solve_operating_points",
            "DEFAULT_FAN_EFFICIENCY"]
 
 #: Total fan efficiency (air power / electrical power) used when the fan file gives no power
-#: data [-]. Mid-range of the 10-35 % typical of small axial fans (physics.md §9, rule of thumb,
+#: data [-]. Mid-range of the 10-35 % typical of small axial fans (docs/theory.md#common-practice, rule of thumb,
 #: no source). Pass ``efficiency=`` to override.
 DEFAULT_FAN_EFFICIENCY = 0.20
 

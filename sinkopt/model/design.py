@@ -144,7 +144,7 @@ class ModelOptions:
     spreading: str = "coarse"
     coarse_terms: int = 20
     #: ``local``: each device sees the mixed-mean air temperature at its centre (upstream
-    #: devices' heat included); ``lumped``: one inlet-referenced sink resistance (physics.md §8).
+    #: devices' heat included); ``lumped``: one inlet-referenced sink resistance (docs/theory.md#ref-1-golden-case).
     air_heating: str = "local"
     series_terms: int = 300
     #: Calibration multipliers from a prototype's measurements (``sinkopt calibrate``); 1 = the

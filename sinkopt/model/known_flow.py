@@ -130,7 +130,7 @@ def evaluate(geometry: SinkGeometry, flow, devices: Sequence[Device], conductivi
     device j from the spreading solution with the sink side as a uniform film
     h_eff = 1/(R A_base) and ΔT_air,j the mixed-mean air rise at the device's centre
     (``air_heating="local"``, with R the convective part of the sink resistance), or 0 with R the
-    inlet-referenced sink resistance (``air_heating="lumped"``, physics.md §8 REF-1).
+    inlet-referenced sink resistance (``air_heating="lumped"``, docs/theory.md#ref-1-golden-case REF-1).
     """
     g = geometry
     n = len(g)

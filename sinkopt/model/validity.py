@@ -35,7 +35,7 @@ REGISTRY: tuple[Correlation, ...] = (
     Correlation("resistance_spreading_song_lee_au_1994", "sla_relative_radius", 0.0, 1.0,
                 "Song, Lee & Au 1994: source smaller than the base", "uses_fast_spreading"),
     Correlation("air_properties_in_tool", "air_temperature_K", 233.15, 373.15,
-                "Sutherland fits checked against CoolProp 0-80 °C (physics.md §1)", "always"),
+                "Sutherland fits checked against CoolProp 0-80 °C (docs/theory.md#air-properties)", "always"),
 )
 
 

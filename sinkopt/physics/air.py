@@ -2,7 +2,7 @@
 
 Every function takes numpy arrays (or scalars) in SI units and broadcasts; a scalar in gives a
 numpy scalar out. Humidity is ignored: at 50 % RH and 25 °C it raises c_p by about 0.9 %
-(CoolProp HAPropsSI, physics.md §1), well inside the uncertainty of the heat-transfer correlations.
+(CoolProp HAPropsSI, docs/theory.md#air-properties), well inside the uncertainty of the heat-transfer correlations.
 """
 from __future__ import annotations
 
@@ -94,7 +94,7 @@ def pressure_standard_atmosphere_1976(altitude):
     -----
     Geometric altitude Z is converted to geopotential altitude H = r0 Z / (r0 + Z). The standard's
     own temperature is used only for the pressure; sinkopt takes the air temperature from the
-    study's (worst-case) ambient, as physics.md §1 recommends.
+    study's (worst-case) ambient, as docs/theory.md#air-properties recommends.
 
     References
     ----------
@@ -102,7 +102,7 @@ def pressure_standard_atmosphere_1976(altitude):
 
     Examples
     --------
-    Matches ``fluids.atmosphere.ATMOSPHERE_1976(3000).P`` = 70121.162 Pa (physics.md §1):
+    Matches ``fluids.atmosphere.ATMOSPHERE_1976(3000).P`` = 70121.162 Pa (docs/theory.md#air-properties):
 
     >>> round(float(pressure_standard_atmosphere_1976(3000.0)), 2)
     70121.16
@@ -136,7 +136,7 @@ def air_density_ideal_gas(temperature, pressure):
     Notes
     -----
     Within 0.06 % of the Lemmon et al. (2000) equation of state (CoolProp) for 0–80 °C at 1 atm
-    (physics.md §1).
+    (docs/theory.md#air-properties).
 
     Examples
     --------
@@ -167,7 +167,7 @@ def air_viscosity_sutherland(temperature):
     References
     ----------
     Sutherland, W., Phil. Mag. 36:507–531, 1893; constants as in White, *Viscous Fluid Flow*,
-    Table 1-2 (from memory). Measured −0.34…−0.65 % against CoolProp over 0–80 °C (physics.md §1).
+    Table 1-2 (from memory). Measured −0.34…−0.65 % against CoolProp over 0–80 °C (docs/theory.md#air-properties).
 
     Examples
     --------
@@ -199,7 +199,7 @@ def air_conductivity_sutherland(temperature):
     References
     ----------
     White, *Viscous Fluid Flow*, Table 1-3 (from memory). Measured −1.1…+0.1 % against CoolProp
-    over 0–80 °C (physics.md §1).
+    over 0–80 °C (docs/theory.md#air-properties).
 
     Examples
     --------

@@ -18,7 +18,7 @@ def flow_fraction_lossless_bypass(sink_dp: Callable[[np.ndarray], np.ndarray], g
 
     The two streams leave a common inlet plenum and re-merge at equal static pressure, the
     bypass stream without loss (Simons & Schmidt 1997; Lee 1995; Copeland 2000 — all from
-    memory; algebra derived and checked in physics.md §6):
+    memory; algebra derived and checked in docs/theory.md#flow-bypass):
 
     .. math:: Q = V_f A_f + V_b A_b, \qquad \Delta p_{hs}(V_f A_f) = \tfrac12\rho(V_b^2 - V_f^2)
 
@@ -55,7 +55,7 @@ def flow_fraction_lossless_bypass(sink_dp: Callable[[np.ndarray], np.ndarray], g
 
     Examples
     --------
-    physics.md §6 (REF-1 fins in a 60 × 35 mm duct at 3 m/s): fin flow fraction 0.27081.
+    docs/theory.md#flow-bypass (REF-1 fins in a 60 × 35 mm duct at 3 m/s): fin flow fraction 0.27081.
 
     >>> from sinkopt.model.design import SinkGeometry
     >>> from sinkopt.physics.air import AirProperties

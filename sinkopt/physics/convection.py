@@ -2,7 +2,7 @@
 
 One function per published correlation; dimensionless inputs where the source uses them.
 Friction factors here are **Fanning** (f_D = 4 f) unless the name says Darcy: the plate-fin papers
-use Fanning, the fluids/ht libraries Darcy (physics.md, pitfall).
+use Fanning, the fluids/ht libraries Darcy (docs/theory.md#symbols-and-units).
 """
 from __future__ import annotations
 
@@ -49,7 +49,7 @@ def fre_rectangular_duct_shah_london_1978(aspect_ratio):
     Notes
     -----
     Fit to the exact series within 0.05 % (tabulated exact values: 20.585 at α = 0.125,
-    15.548 at α = 0.5, 14.227 at α = 1, from memory, physics.md §2a). The "parallel-plate"
+    15.548 at α = 0.5, 14.227 at α = 1, from memory, docs/theory.md#shah-and-london-fully-developed-duct). The "parallel-plate"
     polynomial in λ = b/H used by Culham & Muzychka (2001) is the same expression.
 
     References
@@ -146,11 +146,11 @@ def fre_sqrt_area_rectangular_duct_muzychka_yovanovich_2009(aspect_ratio):
     ----------
     Muzychka, Y. S., Yovanovich, M. M., "Pressure drop in laminar developing flow in noncircular
     ducts: a scaling and modeling approach", J. Fluids Eng. 131:111105, 2009 (from memory;
-    formula corroborated, physics.md §2b).
+    formula corroborated, docs/theory.md#muzychka-and-yovanovich-developing-flow).
 
     Examples
     --------
-    physics.md §2b: 16.4572 at ε = 0.5.
+    docs/theory.md#muzychka-and-yovanovich-developing-flow: 16.4572 at ε = 0.5.
 
     >>> round(float(fre_sqrt_area_rectangular_duct_muzychka_yovanovich_2009(0.5)), 4)
     16.4572
@@ -183,7 +183,7 @@ def nu_plate_fin_teertstra_2000(re_channel_star, prandtl):
     Validity (from memory): laminar, 0.1 < Re_b* < 100, Pr ≈ 0.7, fully shrouded fins.
     The small-Re* limit Re_b* Pr / 2 is the energy-balance limit (outlet air at wall
     temperature), so the resulting sink resistance already contains the air heating; it must not
-    be added again (physics.md §2d).
+    be added again (docs/theory.md#teertstra-composite-nusselt-number).
 
     References
     ----------
@@ -192,7 +192,7 @@ def nu_plate_fin_teertstra_2000(re_channel_star, prandtl):
 
     Examples
     --------
-    physics.md §2d (Pr = 0.7): 2.402326 at Re* = 10.
+    docs/theory.md#teertstra-composite-nusselt-number (Pr = 0.7): 2.402326 at Re* = 10.
 
     >>> round(float(nu_plate_fin_teertstra_2000(10.0, 0.7)), 6)
     2.402326
@@ -234,11 +234,11 @@ def nu_sqrt_area_developing_muzychka_yovanovich_2004(z_star, prandtl, aspect_rat
     ----------
     Muzychka, Y. S., Yovanovich, M. M., "Laminar forced convection heat transfer in the combined
     entry region of non-circular ducts", J. Heat Transfer 126(1):54–61, 2004,
-    doi:10.1115/1.1643752 (formula corroborated, physics.md §2b).
+    doi:10.1115/1.1643752 (formula corroborated, docs/theory.md#muzychka-and-yovanovich-developing-flow).
 
     Examples
     --------
-    physics.md §2b (ε = 0.1, Pr = 0.71): 12.0336 at z* = 0.01.
+    docs/theory.md#muzychka-and-yovanovich-developing-flow (ε = 0.1, Pr = 0.71): 12.0336 at z* = 0.01.
 
     >>> round(float(nu_sqrt_area_developing_muzychka_yovanovich_2004(0.01, 0.71, 0.1)), 4)
     12.0336
@@ -276,7 +276,7 @@ def friction_darcy_smooth_petukhov_1970(reynolds):
 
     Examples
     --------
-    physics.md §2e: 0.0314798 at Re = 1e4.
+    docs/theory.md#turbulent-and-transitional-flow: 0.0314798 at Re = 1e4.
 
     >>> round(float(friction_darcy_smooth_petukhov_1970(1e4)), 7)
     0.0314798

@@ -25,7 +25,7 @@ def fin_parameter(h, conductivity, fin_thickness):
 
     Examples
     --------
-    physics.md §4: h = 50, k = 200, t = 1 mm gives m = 22.36068 1/m.
+    docs/theory.md#fin-efficiency: h = 50, k = 200, t = 1 mm gives m = 22.36068 1/m.
 
     >>> round(float(fin_parameter(50.0, 200.0, 0.001)), 5)
     22.36068
@@ -65,7 +65,7 @@ def fin_efficiency_straight_rectangular(m_length):
 
     Examples
     --------
-    physics.md §4: mH = 0.559017 gives 0.9073923 (the straight-fin limit of
+    docs/theory.md#fin-efficiency: mH = 0.559017 gives 0.9073923 (the straight-fin limit of
     ``ht.fin_efficiency_Kern_Kraus``):
 
     >>> round(float(fin_efficiency_straight_rectangular(22.36068 * 0.025)), 7)

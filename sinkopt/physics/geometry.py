@@ -1,7 +1,7 @@
 """Plate-fin heatsink geometry: fin gap, channel hydraulic diameter, open-area ratio, areas,
 envelope volume and mass.
 
-Symbols (physics.md): W base width across the flow, L flow length, H fin height, N fins,
+Symbols (docs/theory.md): W base width across the flow, L flow length, H fin height, N fins,
 t fin thickness, t_b base thickness, b = (W − N t)/(N − 1) fin gap, N − 1 channels.
 All arrays broadcast; lengths in [m]. These functions trust their inputs: the model layer checks
 that a geometry can exist before calling them (:func:`sinkopt.model.check_geometry`).
@@ -39,7 +39,7 @@ def fin_gap(width, n_fins, fin_thickness):
 
     Examples
     --------
-    REF-1 of physics.md §8 (W = 50 mm, N = 20, t = 1 mm):
+    REF-1 of docs/theory.md#ref-1-golden-case (W = 50 mm, N = 20, t = 1 mm):
 
     >>> round(float(fin_gap(0.05, 20, 0.001)) * 1e3, 6)
     1.578947

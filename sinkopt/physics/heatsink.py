@@ -109,7 +109,7 @@ def sink_hydraulics(width, length, fin_height, fin_thickness, n_fins, flow, air:
 
     Examples
     --------
-    REF-1 (physics.md §8): 65.6113 Pa.
+    REF-1 (docs/theory.md#ref-1-golden-case): 65.6113 Pa.
 
     >>> from sinkopt.physics.air import AirProperties
     >>> air = AirProperties(1.184318, 1.844808e-5, 0.026247, 1006.308, 298.15, 101325.0)
@@ -205,7 +205,7 @@ def sink_pressure_drop_function(width, length, fin_height, fin_thickness, n_fins
 
     Examples
     --------
-    REF-1 (physics.md §8): 65.6113 Pa.
+    REF-1 (docs/theory.md#ref-1-golden-case): 65.6113 Pa.
 
     >>> from sinkopt.physics.air import AirProperties
     >>> air = AirProperties(1.184318, 1.844808e-5, 0.026247, 1006.308, 298.15, 101325.0)
@@ -318,17 +318,17 @@ def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: Ai
     Laminar (Teertstra): R = 1/(h (A_b + N η_f A_f)), already inlet referenced.
     Laminar (Muzychka–Yovanovich) and turbulent (Gnielinski with Petukhov friction): an LMTD
     coefficient, turned into an inlet-referenced resistance by effectiveness–NTU,
-    R = 1/(ε ṁ c_p), ε = 1 − exp(−NTU), NTU = h (A_b + N η_f A_f)/(ṁ c_p) (physics.md §7).
+    R = 1/(ε ṁ c_p), ε = 1 − exp(−NTU), NTU = h (A_b + N η_f A_f)/(ṁ c_p) (docs/theory.md#fan-operating-point).
     Laminar and turbulent conductances are blended between Re_Dh 2300 and 4000
     (:func:`sinkopt.physics.convection.transition_weight`).
 
     ``resistance_convective`` removes the bulk air heating, R − 1/(2 ṁ c_p) (the first terms of
     1/ε = 1/NTU + 1/2 + NTU/12 + ...), floored at half of R; the model adds the local mixed-mean
-    air temperature at each device instead (physics.md §7).
+    air temperature at each device instead (docs/theory.md#fan-operating-point).
 
     Examples
     --------
-    REF-1 (physics.md §8): R_hs = 0.369348 K/W with the adiabatic tip.
+    REF-1 (docs/theory.md#ref-1-golden-case): R_hs = 0.369348 K/W with the adiabatic tip.
 
     >>> from sinkopt.physics.air import AirProperties
     >>> air = AirProperties(1.184318, 1.844808e-5, 0.026247, 1006.308, 298.15, 101325.0)

@@ -43,7 +43,7 @@ def friction_apparent_developing_muzychka_yovanovich_2009(l_plus, fre):
     Notes
     -----
     An asymptotic composite of the short-duct (boundary-layer, 3.44/√L⁺) and fully developed
-    limits; it differs from Shah's (1978) parallel-plate fit by at most 6.5 % (physics.md §2c).
+    limits; it differs from Shah's (1978) parallel-plate fit by at most 6.5 % (docs/theory.md#developing-flow-apparent-friction).
     sinkopt uses it because it is the form of the published plate-fin method (Culham &
     Muzychka 2001) and is smooth for every geometry.
 
@@ -54,7 +54,7 @@ def friction_apparent_developing_muzychka_yovanovich_2009(l_plus, fre):
 
     Examples
     --------
-    REF-1 (physics.md §8): L* = 0.011715, fRe = 22.12210 gives f_app = 0.028652 at
+    REF-1 (docs/theory.md#ref-1-golden-case): L* = 0.011715, fRe = 22.12210 gives f_app = 0.028652 at
     Re_Dh = 1351.524:
 
     >>> round(float(friction_apparent_developing_muzychka_yovanovich_2009(0.011715, 22.12210)) / 1351.524, 6)
@@ -112,7 +112,7 @@ def expansion_loss_culham_muzychka_2001(open_area_ratio):
     r"""Exit expansion loss coefficient of a fin array, :math:`K_e = (1 - σ^2)^2`.
 
     The published plate-fin form; larger than the Borda–Carnot (1 − σ)² and so conservative.
-    sinkopt's default (physics.md §3).
+    sinkopt's default (docs/theory.md#heat-sink-pressure-drop).
 
     Examples
     --------

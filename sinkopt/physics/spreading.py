@@ -86,7 +86,7 @@ def spreading_function(zeta, thickness, conductivity, h):
     ----------
     .. [1] Yovanovich, M. M., Muzychka, Y. S., Culham, J. R., "Spreading resistance of isoflux
        rectangles and strips on compound flux channels", J. Thermophys. Heat Transfer 13(4),
-       495-500, 1999 (volume/pages as recorded in physics.md [M]; DOI 10.2514/2.6467 from
+       495-500, 1999 (volume/pages from memory, docs/theory.md#references; DOI 10.2514/2.6467 from
        memory, unverified).
 
     Examples
@@ -187,19 +187,19 @@ def resistance_spreading_rect_centered_yovanovich_1999(
 
     The truncation error falls like ``1/n_terms``. Measured (project check case S2, 10x10 mm on
     100x100x3 mm): 200 terms is -3e-5 relative to 400 terms and 400 terms is -1e-5 relative to
-    4000. The check values of physics.md section 5 are reproduced to 1e-5 with 400 terms.
+    4000. The check values of docs/theory.md#spreading-check-cases are reproduced to 1e-5 with 400 terms.
 
     References
     ----------
     .. [1] Yovanovich, M. M., Muzychka, Y. S., Culham, J. R., "Spreading resistance of isoflux
        rectangles and strips on compound flux channels", J. Thermophys. Heat Transfer 13(4),
-       495-500, 1999 (volume/pages as recorded in physics.md [M]; DOI 10.2514/2.6467 from
+       495-500, 1999 (volume/pages from memory, docs/theory.md#references; DOI 10.2514/2.6467 from
        memory, unverified). Formula re-derived and checked against a 3-D finite-volume solve by
-       the project (physics.md section 5a, [N]).
+       the project (docs/theory.md#exact-series-one-centred-source, [N]).
 
     Examples
     --------
-    Project check case S1 (physics.md section 5, [N]): 20x20 mm centred on 50x50x5 mm,
+    Project check case S1 (docs/theory.md#spreading-check-cases, [N]): 20x20 mm centred on 50x50x5 mm,
     k = 200, h = 1000.
 
     >>> r_s = resistance_spreading_rect_centered_yovanovich_1999(
@@ -270,7 +270,7 @@ def temperature_rise_rect_sources_muzychka_2003(
           + \sum_n \frac{2\phi(\delta_n)}{\delta_n} v_{in}v_{jn}
           + \sum_m\sum_n \frac{4\phi(\beta_{mn})}{\beta_{mn}} u_{im}v_{in}u_{jm}v_{jn}\Big]
 
-    which is the paper's :math:`A_m, A_n, A_{mn}` coefficients (physics.md section 5b) with the
+    which is the paper's :math:`A_m, A_n, A_{mn}` coefficients (docs/theory.md#multiple-and-eccentric-sources) with the
     identity :math:`\sin((2X+a)\lambda/2) - \sin((2X-a)\lambda/2) = 2\cos(\lambda X)\sin(\lambda a/2)`
     applied.
 
@@ -319,13 +319,12 @@ def temperature_rise_rect_sources_muzychka_2003(
     ----------
     .. [1] Muzychka, Y. S., Culham, J. R., Yovanovich, M. M., "Thermal spreading resistance of
        eccentric heat sources on rectangular flux channels", J. Electron. Packag. 125(2),
-       178-185, 2003 (details as recorded in physics.md [M]; DOI 10.1115/1.1568125 from memory,
-       unverified). Verified by the project against a 3-D finite-volume solve (physics.md
-       section 5b, [N]).
+       178-185, 2003 (details from memory, docs/theory.md#references; DOI 10.1115/1.1568125 from memory,
+       unverified). Verified by the project against a 3-D finite-volume solve (docs/theory.md#multiple-and-eccentric-sources, [N]).
 
     Examples
     --------
-    Project check case S3 (physics.md section 5, [N]): plate 50x50x5 mm, k = 200, h = 1000;
+    Project check case S3 (docs/theory.md#spreading-check-cases, [N]): plate 50x50x5 mm, k = 200, h = 1000;
     A: 10 W at (15, 25) mm, 10x10 mm; B: 20 W at (35, 30) mm, 10x16 mm.
 
     >>> theta = temperature_rise_rect_sources_muzychka_2003(
@@ -444,7 +443,7 @@ def resistance_spreading_song_lee_au_1994(
 
     Notes
     -----
-    Finding of the project (physics.md section 5c, [N]): the two kinds do NOT share a basis.
+    Finding of the project (docs/theory.md#song-lee-au-closed-form, [N]): the two kinds do NOT share a basis.
 
     * ``"average"`` is spreading only; the source-mean to fluid resistance is
       ``t/(k A_p) + 1/(h A_p) + R``.
@@ -468,7 +467,7 @@ def resistance_spreading_song_lee_au_1994(
 
     Examples
     --------
-    Project check case S1 (physics.md section 5, [N]): 20x20 mm on 50x50x5 mm, k = 200,
+    Project check case S1 (docs/theory.md#spreading-check-cases, [N]): 20x20 mm on 50x50x5 mm, k = 200,
     h = 1000.
 
     >>> r_avg = resistance_spreading_song_lee_au_1994(4e-4, 2.5e-3, 0.005, 200.0, 1000.0)
@@ -561,7 +560,7 @@ def temperature_rise_rect_sources_song_lee_au(
 
     Examples
     --------
-    One source reduces to the S1 numbers (physics.md section 5): 1 W times 0.010 K/W plate
+    One source reduces to the S1 numbers (docs/theory.md#spreading-check-cases): 1 W times 0.010 K/W plate
     conduction + 0.400 K/W film + 0.084852 K/W spreading.
 
     >>> theta = temperature_rise_rect_sources_song_lee_au(

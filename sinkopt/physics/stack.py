@@ -62,7 +62,7 @@ def resistance_slab(thickness, conductivity, area):
 
     Examples
     --------
-    Base of the project's REF-1 case (physics.md section 8): 5 mm of k = 200 over 50x50 mm,
+    Base of the project's REF-1 case (docs/theory.md#ref-1-golden-case): 5 mm of k = 200 over 50x50 mm,
     0.005/(200*0.0025) = 0.010 K/W.
 
     >>> round(float(resistance_slab(0.005, 200.0, 0.05 * 0.05)), 6)
@@ -97,7 +97,7 @@ def resistance_interface(specific_resistance, area):
 
     Examples
     --------
-    TIM of the project's REF-1 case (physics.md section 8): 0.1 K cm^2/W over 4 cm^2
+    TIM of the project's REF-1 case (docs/theory.md#ref-1-golden-case): 0.1 K cm^2/W over 4 cm^2
     = 0.1e-4/4e-4 = 0.025 K/W.
 
     >>> round(float(resistance_interface(0.1e-4, 4e-4)), 6)
@@ -209,7 +209,7 @@ def resistance_stack(resistances):
 
     Examples
     --------
-    Junction to base of the project's REF-1 case (physics.md section 8):
+    Junction to base of the project's REF-1 case (docs/theory.md#ref-1-golden-case):
     R_jc 0.30 + TIM 0.025 = 0.325 K/W.
 
     >>> round(float(resistance_stack([0.30, resistance_interface(0.1e-4, 4e-4)])), 6)

@@ -43,7 +43,7 @@ def sampler_asks(n_complete: int, batch: int) -> int:
     """``tpe-refine``: how many of a batch TPE proposes (the refined archive fills the rest).
 
     A quarter while the study is small; then fewer, because TPE's cost per proposal grows with
-    the Pareto set it must split (0.3 s at 1000 trials, optimizer.md §3) while the archive's
+    the Pareto set it must split (0.3 s at 1000 trials, docs/theory.md#search-and-pareto-front) while the archive's
     proposals cost nothing.
 
     >>> [sampler_asks(n, 8) for n in (0, 199, 200, 500, 508)]
@@ -55,7 +55,7 @@ def sampler_asks(n_complete: int, batch: int) -> int:
         return 1
     return 1 if (n_complete // batch) % 2 == 0 else 0
 #: Trials asked before the batch is evaluated and told. TPE's constant liar keeps a batch spread
-#: out; batches make TPE ~3x cheaper per trial (optimizer.md §4).
+#: out; batches make TPE ~3x cheaper per trial (docs/theory.md#search-and-pareto-front).
 DEFAULT_BATCH = 8
 #: Batches between two looks for trials left running by a dead worker.
 STALE_CHECK_EVERY = 10
@@ -114,7 +114,7 @@ def open_study(problem: Problem, storage, seed: int | None, sampler: str | None 
         raise ValueError(f"the stored study {name!r} optimises {stored}, not {directions}: "
                          "use another results folder or study name")
     # A reused seed would make a resumed random search repeat its first proposals
-    # (optimizer.md §1): derive it from the number of trials already stored.
+    # (docs/theory.md#search-and-pareto-front): derive it from the number of trials already stored.
     effective = None if seed is None else seed + len(study.trials)
     study.sampler = make_sampler(sampler or problem.sampler, effective, len(directions))
     with warnings.catch_warnings():

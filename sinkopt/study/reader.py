@@ -43,7 +43,7 @@ __all__ = ["load_study", "parse_study", "fan_label", "fan_choices", "fan_speed_r
 SECTIONS = ("study", "ambient", "device", "sink", "air", "objectives", "constraints", "model")
 #: Highest allowed fan speed, as a fraction of the rated speed (fan laws beyond the data).
 FAN_SPEED_MAX = 1.2
-#: Default junction margin [K]: common practice is 10-25 K below tj_max (ecosystem.md §5).
+#: Default junction margin [K]: common practice is 10-25 K below tj_max (common practice, no source).
 DEFAULT_MARGIN_K = 10.0
 
 _STUDY_KEYS = ("name", "description", "trials", "seed", "sampler")

@@ -320,7 +320,7 @@ class ProcessPreset:
     min_base_thickness_mm: float | None
 
 
-#: Typical limits per process (common practice, no source; ecosystem.md §5). Each value is the
+#: Typical limits per process (common practice, no source; common practice, no source). Each value is the
 #: conservative end of the usual range; explicit keys in [sink] override them. ``custom`` has no
 #: preset: all four keys must be given.
 PROCESS_PRESETS: dict[str, ProcessPreset] = {

@@ -1,4 +1,4 @@
-"""Shared helpers of the fan tests: the closed-form quadratic fan of physics.md §7.
+"""Shared helpers of the fan tests: the closed-form quadratic fan of docs/theory.md#fan-operating-point.
 
 (Not named conftest.py: a second conftest module would clash with tests/study/conftest.py
 under --doctest-modules.)
@@ -14,7 +14,7 @@ from sinkopt.fans import FanCurve
 REPO = Path(__file__).resolve().parents[2]
 CATALOG = REPO / "catalogs" / "fans"
 
-# physics.md §7: fan dp = p0 (1 - (Q/Qmax)^2), p0 = 80 Pa, Qmax = 0.010 m3/s; system dp = k Q^2
+# docs/theory.md#fan-operating-point: fan dp = p0 (1 - (Q/Qmax)^2), p0 = 80 Pa, Qmax = 0.010 m3/s; system dp = k Q^2
 P0_Pa = 80.0
 QMAX_m3_s = 0.010
 K_SYS = 4e5  # [Pa s2/m6]

@@ -93,7 +93,7 @@ def test_flat_segment_counts_as_stall():
 
 
 def test_fan_laws_speed():
-    # physics.md §7 check: N2/N1 = 0.8 -> Q x0.8, dp x0.64, P x0.512; noise +50 log10(0.8) dB
+    # docs/theory.md#fan-operating-point check: N2/N1 = 0.8 -> Q x0.8, dp x0.64, P x0.512; noise +50 log10(0.8) dB
     fan = load_fan_curve(CATALOG / "demo-axial-80-stall.csv")
     slow = fan.scaled(0.8)
     np.testing.assert_allclose(slow.flow_m3_s, 0.8 * fan.flow_m3_s, rtol=1e-15)
@@ -115,10 +115,10 @@ def test_fan_laws_rated_power():
 
 
 def test_density_scaling():
-    # at equal volume flow dp is proportional to density (fan laws; physics.md §7)
+    # at equal volume flow dp is proportional to density (fan laws; docs/theory.md#fan-operating-point)
     fan = quadratic_fan()
     q = np.linspace(0, 0.01, 11)
-    rho = 0.870  # 2000 m, 45 °C (ecosystem.md §5)
+    rho = 0.870  # 2000 m, 45 °C (common practice, no source)
     np.testing.assert_allclose(fan.pressure(q, air_density_kg_m3=rho),
                                fan.pressure(q) * rho / 1.2, rtol=1e-15)
     thin = fan.scaled(1.0, rho)
@@ -130,7 +130,7 @@ def test_noise():
     fan = quadratic_fan(noise_dBA=40.0)
     assert fan.noise(0.5) == pytest.approx(40 - 50 * math.log10(2))
     assert np.isnan(quadratic_fan().noise(0.5))
-    # N equal incoherent sources: +10 log10 N (ecosystem.md §5)
+    # N equal incoherent sources: +10 log10 N (common practice, no source)
     assert FanArray(fan, count=4).noise(1.0) == pytest.approx(40 + 10 * math.log10(4))
     assert FanArray(fan, count=4, failed=1, shuttered=True).noise() == pytest.approx(
         40 + 10 * math.log10(3))
@@ -178,7 +178,7 @@ def test_array_defaults(quad_fan):
 
 
 def test_array_curves(quad_fan):
-    # physics.md §7: series doubles dp at equal Q, parallel doubles Q at equal dp
+    # docs/theory.md#fan-operating-point: series doubles dp at equal Q, parallel doubles Q at equal dp
     q = np.linspace(0, 0.01, 11)
     par = FanArray(quad_fan, count=2).evaluate(q)
     ser = FanArray(quad_fan, count=2, arrangement="series").evaluate(q)

@@ -20,7 +20,7 @@ def quad_fan():
 
 # PCHIP through 40 equally spaced points of the quadratic fan reproduces it to ~1e-6 relative
 # near the operating points (measured: 1.0e-6 on Q); 1e-5 leaves margin for that interpolation
-# error while still resolving the 5-6 significant digits printed in physics.md §7.
+# error while still resolving the 5-6 significant digits printed in docs/theory.md#fan-operating-point.
 RTOL_40 = 1e-5
 
 
@@ -29,7 +29,7 @@ def quad_system(q):
 
 
 @pytest.mark.parametrize("count, arrangement, q_closed, dp_closed, q_printed, dp_printed", [
-    # closed form (physics.md §7): p0 (1 - (Q/(m Qmax))^2) * n_s = k Q^2
+    # closed form (docs/theory.md#fan-operating-point): p0 (1 - (Q/(m Qmax))^2) * n_s = k Q^2
     #   => Q = sqrt(n_s p0 / (k + n_s p0 / (m Qmax)^2)), m fans in parallel, n_s in series
     (1, "parallel", math.sqrt(P0_Pa / (K_SYS + P0_Pa / QMAX_m3_s**2)), None, 0.0081650, 26.6667),
     (2, "series", math.sqrt(2 * P0_Pa / (K_SYS + 2 * P0_Pa / QMAX_m3_s**2)), None, 0.0089443,
@@ -43,7 +43,7 @@ def test_closed_form_cases(count, arrangement, q_closed, dp_closed, q_printed, d
     assert op.flow_m3_s.shape == (1,)
     assert op.flow_m3_s[0] == pytest.approx(q_closed, rel=RTOL_40)
     assert op.pressure_Pa[0] == pytest.approx(K_SYS * q_closed**2, rel=2 * RTOL_40)
-    # the values printed in physics.md §7 (5-6 significant digits)
+    # the values printed in docs/theory.md#fan-operating-point (5-6 significant digits)
     assert op.flow_m3_s[0] == pytest.approx(q_printed, rel=RTOL_40)
     assert op.pressure_Pa[0] == pytest.approx(dp_printed, rel=2 * RTOL_40)
     assert not op.no_intersection[0] and not op.in_stall[0]
@@ -94,7 +94,7 @@ def test_against_brentq_random_monotone_fans():
         n = 40
         s = rng.uniform(0.3, 1.6, n)
         rho = rng.uniform(0.7, 1.3, n)
-        expo = rng.uniform(1.0, 2.0, n)  # laminar ... turbulent systems (physics.md §7)
+        expo = rng.uniform(1.0, 2.0, n)  # laminar ... turbulent systems (docs/theory.md#fan-operating-point)
         # choose k so that the system crosses the fan somewhere inside the data
         q_target = rng.uniform(0.05, 0.95, n) * s * q[-1] * (count if arrangement == "parallel"
                                                                else 1)
@@ -108,7 +108,7 @@ def test_against_brentq_random_monotone_fans():
             n_ser = count if arrangement == "series" else 1
             q_top = n_par * s[i] * q[-1]
 
-            def f(Q):  # fan laws + identical fans (physics.md §7), then minus the system
+            def f(Q):  # fan laws + identical fans (docs/theory.md#fan-operating-point), then minus the system
                 return (n_ser * s[i] ** 2 * rho[i] / 1.2 * ref(Q / (n_par * s[i]))
                         - k[i] * Q ** expo[i])
 

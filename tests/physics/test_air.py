@@ -1,4 +1,4 @@
-"""Air properties and the standard atmosphere against CoolProp and fluids (physics.md §1)."""
+"""Air properties and the standard atmosphere against CoolProp and fluids (docs/theory.md#air-properties)."""
 import numpy as np
 import pytest
 
@@ -14,7 +14,7 @@ TEMPS_C = [0.0, 20.0, 25.0, 40.0, 60.0, 80.0]
 @pytest.mark.parametrize("p", [101325.0, 70121.162])
 def test_in_tool_air_model_against_coolprop(t_c, p):
     # Oracle: CoolProp PropsSI 'Air' (Lemmon et al. 2000 EOS, Lemmon & Jacobsen 2004 transport).
-    # Tolerances are the in-tool model's measured error band, physics.md §1: rho 0.1 %, mu 1 %,
+    # Tolerances are the in-tool model's measured error band, docs/theory.md#air-properties: rho 0.1 %, mu 1 %,
     # k 1.5 %, cp 0.5 %.
     t = t_c + 273.15
     props = air.air_properties(t, p)
@@ -26,7 +26,7 @@ def test_in_tool_air_model_against_coolprop(t_c, p):
 
 
 def test_coolprop_table_of_physics_note():
-    # physics.md §1 table, 25 °C / 101325 Pa (CoolProp 8.0.0): keeps the oracle itself honest.
+    # docs/theory.md#air-properties table, 25 °C / 101325 Pa (CoolProp 8.0.0): keeps the oracle itself honest.
     assert CoolProp.PropsSI("D", "T", 298.15, "P", 101325, "Air") == pytest.approx(1.184318, rel=1e-5)
     assert CoolProp.PropsSI("V", "T", 298.15, "P", 101325, "Air") == pytest.approx(1.844808e-5, rel=1e-5)
 
@@ -38,7 +38,7 @@ def test_pressure_against_fluids_atmosphere_1976(z):
 
 
 def test_standard_atmosphere_table():
-    # physics.md §1 [O]: P at 1000 / 2000 / 3000 m = 89876.285 / 79501.425 / 70121.162 Pa.
+    # docs/theory.md#air-properties [O]: P at 1000 / 2000 / 3000 m = 89876.285 / 79501.425 / 70121.162 Pa.
     got = air.pressure_standard_atmosphere_1976(np.array([1000.0, 2000.0, 3000.0]))
     np.testing.assert_allclose(got, [89876.285, 79501.425, 70121.162], rtol=1e-7)
     # Density at the standard's own temperature: fluids gives 1.1116590 kg/m^3 at 1000 m.

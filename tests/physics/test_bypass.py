@@ -1,4 +1,4 @@
-"""Lossless-bypass model against the worked check of physics.md §6."""
+"""Lossless-bypass model against the worked check of docs/theory.md#flow-bypass."""
 import numpy as np
 import pytest
 
@@ -17,7 +17,7 @@ def sink_dp(q):
 
 
 def test_bypass_check_values():
-    # physics.md §6 [N]: REF-1 fins in a 60 x 35 mm duct at 3 m/s (Q = 6.3e-3 m^3/s,
+    # docs/theory.md#flow-bypass [N]: REF-1 fins in a 60 x 35 mm duct at 3 m/s (Q = 6.3e-3 m^3/s,
     # A_f = 7.5e-4, A_b = 8.5e-4): V_f = 2.27482 m/s, V_b = 5.40457 m/s, fin flow fraction
     # 0.27081, dp_hs = 14.2323 Pa, R_hs = 0.625309 K/W.
     q = 6.3e-3

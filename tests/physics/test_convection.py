@@ -1,4 +1,4 @@
-"""Channel correlations against ht and fluids (physics.md §2, §7, §10)."""
+"""Channel correlations against ht and fluids (docs/theory.md#laminar-channel-flow, docs/theory.md#channel-correlation-check-values)."""
 import numpy as np
 import pytest
 
@@ -17,7 +17,7 @@ def test_nu_h1_against_ht_shah_london(alpha):
 
 
 @pytest.mark.parametrize("alpha, fre_exact, nut_exact", [
-    # Shah & London 1978 tabulated exact values (from memory, physics.md §2a brackets);
+    # Shah & London 1978 tabulated exact values (from memory, docs/theory.md#shah-and-london-fully-developed-duct brackets);
     # the polynomial fits agree within 0.06 %.
     (0.125, 20.585, None), (0.25, 18.233, None), (0.5, 15.548, 3.391), (1.0, 14.227, 2.976),
 ])
@@ -35,7 +35,7 @@ def test_parallel_plate_limits():
 
 
 @pytest.mark.parametrize("eps, fre_sqrt_a, fre_dh", [
-    # physics.md §2b [O/N]: M–Y √A values and their Dh-basis conversion.
+    # docs/theory.md#muzychka-and-yovanovich-developing-flow [O/N]: M–Y √A values and their Dh-basis conversion.
     (0.1, 36.8069, 21.1625), (0.5, 16.4572, 15.5160), (1.0, 14.1320, 14.1320)])
 def test_muzychka_yovanovich_fre(eps, fre_sqrt_a, fre_dh):
     got = cv.fre_sqrt_area_rectangular_duct_muzychka_yovanovich_2009(eps)
@@ -43,19 +43,19 @@ def test_muzychka_yovanovich_fre(eps, fre_sqrt_a, fre_dh):
     # Dh/√A for a rectangle eps: Dh = 2 eps c/(1+eps) with c the long side, √A = c √eps
     dh_over_sqrt_a = 2.0 * np.sqrt(eps) / (1.0 + eps)
     assert got * dh_over_sqrt_a == pytest.approx(fre_dh, rel=1e-5)
-    # ... within 0.7 % of Shah & London on the Dh basis (physics.md §2b).
+    # ... within 0.7 % of Shah & London on the Dh basis (docs/theory.md#muzychka-and-yovanovich-developing-flow).
     assert got * dh_over_sqrt_a == pytest.approx(cv.fre_rectangular_duct_shah_london_1978(eps), rel=7e-3)
 
 
 @pytest.mark.parametrize("z, nu", [(1e-3, 25.7056), (1e-2, 12.0336), (0.1, 10.6219), (1.0, 10.5886)])
 def test_muzychka_yovanovich_nusselt(z, nu):
-    # physics.md §2b [O/N]: Nu_√A (average, UWT, eps = 0.1, Pr = 0.71).
+    # docs/theory.md#muzychka-and-yovanovich-developing-flow [O/N]: Nu_√A (average, UWT, eps = 0.1, Pr = 0.71).
     assert cv.nu_sqrt_area_developing_muzychka_yovanovich_2004(z, 0.71, 0.1) == pytest.approx(nu, rel=1e-5)
 
 
 @pytest.mark.parametrize("re_star, nu", [(0.1, 0.034998), (1.0, 0.347599), (10.0, 2.402326), (100.0, 6.870702)])
 def test_teertstra_check_values(re_star, nu):
-    # physics.md §2d [N] (Pr = 0.7).
+    # docs/theory.md#teertstra-composite-nusselt-number [N] (Pr = 0.7).
     assert cv.nu_plate_fin_teertstra_2000(re_star, 0.7) == pytest.approx(nu, rel=1e-5)
 
 
@@ -75,7 +75,7 @@ def test_gnielinski_against_ht(re, pr):
 
 
 def test_gnielinski_with_petukhov_friction():
-    # physics.md §2e: with Petukhov f_D = 0.0314798 at Re = 1e4, Nu = 30.0278486.
+    # docs/theory.md#turbulent-and-transitional-flow: with Petukhov f_D = 0.0314798 at Re = 1e4, Nu = 30.0278486.
     fd = cv.friction_darcy_smooth_petukhov_1970(1e4)
     assert fd == pytest.approx(0.0314798, rel=1e-6)
     assert cv.nu_turbulent_gnielinski_1976(1e4, 0.71, fd) == pytest.approx(30.0278486, rel=1e-7)

@@ -1,4 +1,4 @@
-"""Fin efficiency against ht and the analytic convective-tip solution (physics.md §4)."""
+"""Fin efficiency against ht and the analytic convective-tip solution (docs/theory.md#fin-efficiency)."""
 import numpy as np
 import pytest
 
@@ -8,7 +8,7 @@ ht = pytest.importorskip("ht")
 
 
 def test_check_values_physics_note():
-    # physics.md §4 [N/O]: h = 50, k = 200, t = 1 mm, H = 25 mm.
+    # docs/theory.md#fin-efficiency [N/O]: h = 50, k = 200, t = 1 mm, H = 25 mm.
     m = fin.fin_parameter(50.0, 200.0, 1e-3)
     assert m == pytest.approx(22.36068, rel=1e-6)
     assert fin.fin_efficiency_straight_rectangular(m * 0.025) == pytest.approx(0.9073923, rel=1e-6)
@@ -26,7 +26,7 @@ def test_against_ht_annular_fin_in_straight_limit():
 
 def test_corrected_length_against_exact_convective_tip():
     # Bergman et al. 2011, Table 3.4 case A (convective tip), from memory: q/theta_b =
-    # sqrt(hPkAc) [sinh mH + (h/mk) cosh mH]/[cosh mH + (h/mk) sinh mH]; physics.md §4 gives
+    # sqrt(hPkAc) [sinh mH + (h/mk) cosh mH]/[cosh mH + (h/mk) sinh mH]; docs/theory.md#fin-efficiency gives
     # 0.11527032 W/K exact vs 0.11527024 with the corrected length (fin 50 mm long).
     h, k, t, H, w = 50.0, 200.0, 1e-3, 0.025, 0.05
     m = fin.fin_parameter(h, k, t)

@@ -1,5 +1,5 @@
-"""Whole-sink composition: REF-1 (physics.md §8) and the Culham & Muzychka (2001) worked table
-(validation.md §B)."""
+"""Whole-sink composition: REF-1 (docs/theory.md#ref-1-golden-case) and the Culham & Muzychka (2001) worked table
+(docs/theory.md#culham-and-muzychka-2001-worked-example)."""
 import numpy as np
 import pytest
 
@@ -8,13 +8,13 @@ from sinkopt.physics import spreading as sp
 from sinkopt.physics.air import AirProperties
 from sinkopt.physics.convection import nu_plate_fin_teertstra_2000
 
-# REF-1 air: CoolProp 8.0.0 at 25 °C, 101325 Pa (physics.md §8).
+# REF-1 air: CoolProp 8.0.0 at 25 °C, 101325 Pa (docs/theory.md#ref-1-golden-case).
 REF1_AIR = AirProperties(1.184318, 1.844808e-5, 0.026247, 1006.308, 298.15, 101325.0)
 REF1 = dict(width=0.05, length=0.05, fin_height=0.025, fin_thickness=0.001, n_fins=20)
 
 
 def test_regression_ref1_thermal():
-    # physics.md §8 REF-1 [N], pure-formula regression: 1e-6 relative.
+    # docs/theory.md#ref-1-golden-case REF-1 [N], pure-formula regression: 1e-6 relative.
     th = hs.sink_thermal(**REF1, flow=0.005, air=REF1_AIR, conductivity=200.0)
     assert th.h == pytest.approx(58.6394, rel=1e-5)
     assert th.fin_efficiency == pytest.approx(0.893431, rel=1e-5)
@@ -25,7 +25,7 @@ def test_regression_ref1_thermal():
 
 
 def test_regression_ref1_pressure_drop_and_options():
-    # physics.md §8 REF-1 [N]: 65.6113 Pa default; 59.0423 with K_e = (1 - sigma)^2;
+    # docs/theory.md#ref-1-golden-case REF-1 [N]: 65.6113 Pa default; 59.0423 with K_e = (1 - sigma)^2;
     # 69.6959 with the rectangular-channel hydraulic diameter.
     hy = hs.sink_hydraulics(**REF1, flow=0.005, air=REF1_AIR)
     assert hy.velocity == pytest.approx(6.666667, rel=1e-6)
@@ -40,7 +40,7 @@ def test_regression_ref1_pressure_drop_and_options():
 
 
 def test_regression_ref1_altitude():
-    # physics.md §8: same 0.005 m^3/s at 3000 m (70121.16 Pa, 25 °C, rho 0.819516):
+    # docs/theory.md#ref-1-golden-case: same 0.005 m^3/s at 3000 m (70121.16 Pa, 25 °C, rho 0.819516):
     # R_hs 0.432222 K/W, dp 54.8620 Pa. The note took mu and k from CoolProp at 70 kPa, which
     # differ from the sea-level values used here by ~0.05 %: tolerance 1e-3 on R.
     air = REF1_AIR._replace(density=0.819516, pressure=70121.16)
@@ -49,7 +49,7 @@ def test_regression_ref1_altitude():
 
 
 def test_regression_ref1_junction_temperature():
-    # physics.md §8 REF-1: 20x20 mm centred source, h_eff = 1/(R_hs A) = 1082.988 W/m^2K,
+    # docs/theory.md#ref-1-golden-case REF-1: 20x20 mm centred source, h_eff = 1/(R_hs A) = 1082.988 W/m^2K,
     # R_s(series) = 0.090111; R_jc 0.30 + TIM 0.025 + base 1-D 0.010 + R_s + R_hs = 0.794459 K/W,
     # T_j = 64.7230 °C for 50 W at 25 °C.
     th = hs.sink_thermal(**REF1, flow=0.005, air=REF1_AIR, conductivity=200.0)
@@ -61,7 +61,7 @@ def test_regression_ref1_junction_temperature():
     assert tj == pytest.approx(64.7230, abs=2e-4)
 
 
-# validation.md §B: Culham & Muzychka 2001, Tables I and IV and cases (i)-(vi): N, V_f [m/s],
+# docs/theory.md#culham-and-muzychka-2001-worked-example: Culham & Muzychka 2001, Tables I and IV and cases (i)-(vi): N, V_f [m/s],
 # t [mm], H [mm], theta_b [°C] at 30 W. Their model with their air properties (k 0.025, Pr 0.71,
 # nu 1.5e-5) reproduces theta_b within 0.2 % (case (v) 1 %) [N]. This checks our Teertstra
 # function and the fin/base composition of the published chain, not measurements.
@@ -98,14 +98,14 @@ def test_culham_muzychka_2001_worked_table(n, v_f, t_mm, h_mm, theta):
 
 def test_muzychka_yovanovich_option_close_to_teertstra_at_ref1():
     # Two published laminar models for the same sink: expected to agree within the usual
-    # +-15-25 % correlation uncertainty (ecosystem.md §5 "Uncertainty", common practice).
+    # +-15-25 % correlation uncertainty (common practice, no source).
     a = hs.sink_thermal(**REF1, flow=0.005, air=REF1_AIR, conductivity=200.0)
     b = hs.sink_thermal(**REF1, flow=0.005, air=REF1_AIR, conductivity=200.0, heat_transfer="muzychka_yovanovich")
     assert b.resistance == pytest.approx(a.resistance, rel=0.25)
 
 
 def test_fully_developed_ntu_variant_of_ref1():
-    # physics.md §8: same G with fully developed Nu_Dh = 7.541 and eps-NTU: NTU 0.4823,
+    # docs/theory.md#ref-1-golden-case: same G with fully developed Nu_Dh = 7.541 and eps-NTU: NTU 0.4823,
     # eps 0.38264, R = 0.438572 K/W. Composed from our single functions.
     from sinkopt.physics import fin, geometry as geo
     from sinkopt.physics.convection import effectiveness_isothermal_wall

@@ -1,4 +1,4 @@
-"""Fin-array loss coefficients and friction against fluids (physics.md §3)."""
+"""Fin-array loss coefficients and friction against fluids (docs/theory.md#heat-sink-pressure-drop)."""
 import numpy as np
 import pytest
 
@@ -9,7 +9,7 @@ fluids_core = pytest.importorskip("fluids.core")
 
 
 @pytest.mark.parametrize("sigma, kc, ke_cm, ke_bc", [
-    # physics.md §3 table (Culham & Muzychka 2001 forms; Borda–Carnot).
+    # docs/theory.md#heat-sink-pressure-drop table (Culham & Muzychka 2001 forms; Borda–Carnot).
     (0.2, 0.4032, 0.9216, 0.6400), (0.5, 0.3150, 0.5625, 0.2500),
     (0.6, 0.2688, 0.4096, 0.1600), (0.8, 0.1512, 0.1296, 0.0400)])
 def test_loss_coefficients_table(sigma, kc, ke_cm, ke_bc):
@@ -28,13 +28,13 @@ def test_borda_carnot_against_fluids_diffuser_sharp(sigma):
 @pytest.mark.parametrize("sigma", [0.5, 0.6, 0.8])
 def test_contraction_is_the_same_order_as_pipe_sharp_contraction(sigma):
     # Oracle: fluids.fittings.contraction_sharp (Rennels). The plate-fin K_c = 0.42(1 - sigma^2)
-    # is a different fit; physics.md §3 shows the two within 0.06 absolute for sigma >= 0.5 (0.11 at sigma = 0.2).
+    # is a different fit; docs/theory.md#heat-sink-pressure-drop shows the two within 0.06 absolute for sigma >= 0.5 (0.11 at sigma = 0.2).
     assert pdm.contraction_loss_culham_muzychka_2001(sigma) == pytest.approx(
         fittings.contraction_sharp(Di1=1.0, Di2=np.sqrt(sigma)), abs=0.06)
 
 
 def test_exit_loss_default_is_conservative():
-    # physics.md §3: (1 - sigma^2)^2 >= (1 - sigma)^2 for sigma in [0, 1].
+    # docs/theory.md#heat-sink-pressure-drop: (1 - sigma^2)^2 >= (1 - sigma)^2 for sigma in [0, 1].
     s = np.linspace(0, 1, 101)
     assert np.all(pdm.expansion_loss_culham_muzychka_2001(s) >= pdm.expansion_loss_borda_carnot(s) - 1e-15)
 
@@ -54,7 +54,7 @@ def test_apparent_friction_limits():
 
 
 @pytest.mark.parametrize("x_plus, shah", [
-    # physics.md §2c [N]: Shah (1978) parallel plates; the composite differs by <= 6.5 %.
+    # docs/theory.md#developing-flow-apparent-friction [N]: Shah (1978) parallel plates; the composite differs by <= 6.5 %.
     (1e-4, 344.4705), (1e-3, 111.5729), (1e-2, 39.4000), (0.05, 27.2326), (0.1, 25.6422)])
 def test_apparent_friction_against_shah_1978(x_plus, shah):
     got = pdm.friction_apparent_developing_muzychka_yovanovich_2009(x_plus, 24.0)

@@ -1,12 +1,12 @@
 """Tests of sinkopt.physics.spreading against the project's verified check values.
 
-Sources of the numbers (see /work/shared/design/physics.md):
-- section 5 check cases S1-S3 and the REF-1 spreading line of section 8 are tagged [N]: the
+Sources of the numbers (docs/theory.md#spreading-check-cases):
+- check cases S1-S3 and the REF-1 spreading line (docs/theory.md#ref-1-golden-case) are tagged [N]: the
   project re-derived the series and verified it against its own 3-D finite-volume (FV) solve.
   They are numerical verification, not published or experimental data.
-- The FV numbers quoted in section 5 are an independent discretisation, used here with a 0.5 %
+- The FV numbers quoted there are an independent discretisation, used here with a 0.5 %
   tolerance (the FV grids are 50x50x20 and 100x100x20 cells).
-- Song-Lee-Au intermediates (epsilon, tau, Bi, lambda, Phi, psi) are the section 5 S1 list.
+- Song-Lee-Au intermediates (epsilon, tau, Bi, lambda, Phi, psi) are the S1 list of docs/theory.md#spreading-check-cases.
 No value in this file is from memory.
 """
 import math
@@ -26,20 +26,20 @@ from sinkopt.physics.spreading import (
     temperature_rise_rect_sources_song_lee_au as theta_sla,
 )
 
-# The check values of physics.md section 5 are reproduced to 1e-5 with 400 terms per index
+# The check values of docs/theory.md#spreading-check-cases are reproduced to 1e-5 with 400 terms per index
 # (200 terms is within 3e-5: the series converges like 1/n_terms).
 N_CHECK = 400
 RTOL_CHECK = 1e-5
 RTOL_FV = 5e-3
 
-# S1 / S2 / REF-1 geometry (physics.md sections 5 and 8): full sizes [m], k [W/mK], h [W/m2K].
+# S1 / S2 / REF-1 geometry (docs/theory.md#spreading-check-cases and 8): full sizes [m], k [W/mK], h [W/m2K].
 S1 = dict(source_x=0.02, source_y=0.02, plate_x=0.05, plate_y=0.05, thickness=0.005,
           conductivity=200.0, h=1000.0)
 S2 = dict(source_x=0.01, source_y=0.01, plate_x=0.10, plate_y=0.10, thickness=0.003,
           conductivity=200.0, h=100.0)
 REF1 = dict(S1, h=1082.988)
 
-# S3 (physics.md section 5): plate 50x50x5 mm, k = 200, h = 1000; A 10 W at (15, 25) mm,
+# S3 (docs/theory.md#spreading-check-cases): plate 50x50x5 mm, k = 200, h = 1000; A 10 W at (15, 25) mm,
 # 10x10 mm; B 20 W at (35, 30) mm, 10(x) x 16(y) mm.
 S3_PLATE = (0.05, 0.05, 0.005, 200.0, 1000.0)
 S3_SOURCES = ([10.0, 20.0], [0.015, 0.035], [0.025, 0.030], [0.010, 0.010], [0.010, 0.016])
@@ -59,9 +59,9 @@ def sla(case, kind="average"):
 # --- check values: exact series -----------------------------------------------------------
 
 @pytest.mark.parametrize("case, r_s, r_total", [
-    (S1, 0.0903759, 0.500376),  # physics.md 5, S1 [N]
-    (S2, 0.511676, 1.513176),  # physics.md 5, S2 [N]
-    (REF1, 0.090111, None),  # physics.md 8, REF-1 spreading [N]
+    (S1, 0.0903759, 0.500376),  # docs/theory.md#spreading-check-cases, S1 [N]
+    (S2, 0.511676, 1.513176),  # docs/theory.md#spreading-check-cases, S2 [N]
+    (REF1, 0.090111, None),  # docs/theory.md#ref-1-golden-case, REF-1 spreading [N]
 ])
 def test_centered_series_check_values(case, r_s, r_total):
     got = r_centered(**case, n_terms=N_CHECK)
@@ -71,7 +71,7 @@ def test_centered_series_check_values(case, r_s, r_total):
 
 
 def test_centered_series_one_d_parts_s1():
-    # physics.md 5, S1: t/(kA) = 0.010, 1/(hA) = 0.400; S2: R_1D = 1.0015.
+    # docs/theory.md#spreading-check-cases, S1: t/(kA) = 0.010, 1/(hA) = 0.400; S2: R_1D = 1.0015.
     assert one_d(S1) == pytest.approx(0.410, rel=1e-12)
     assert one_d(S2) == pytest.approx(1.0015, rel=1e-12)
 
@@ -83,8 +83,8 @@ def test_centered_series_default_terms_close_to_check_values():
 
 
 @pytest.mark.parametrize("case, r_total_fv", [
-    (S1, 0.500902),  # physics.md 5, S1, FV 50x50x20 cells
-    (S2, 1.516936),  # physics.md 5, S2, FV
+    (S1, 0.500902),  # docs/theory.md#spreading-check-cases, S1, FV 50x50x20 cells
+    (S2, 1.516936),  # docs/theory.md#spreading-check-cases, S2, FV
 ])
 def test_centered_series_against_finite_volume(case, r_total_fv):
     got = one_d(case) + r_centered(**case, n_terms=N_CHECK)
@@ -92,7 +92,7 @@ def test_centered_series_against_finite_volume(case, r_total_fv):
 
 
 def test_multi_source_series_check_values_s3():
-    # physics.md 5, S3 [N]: mean rises A 13.88011 K, B 16.03640 K.
+    # docs/theory.md#spreading-check-cases, S3 [N]: mean rises A 13.88011 K, B 16.03640 K.
     got = theta_series(*S3_PLATE, *S3_SOURCES, n_terms=N_CHECK)
     np.testing.assert_allclose(got, [13.88011, 16.03640], rtol=RTOL_CHECK)
     # Default 200 terms is within 1e-5 too (measured 8e-6).
@@ -101,7 +101,7 @@ def test_multi_source_series_check_values_s3():
 
 
 def test_multi_source_series_against_finite_volume_s3():
-    # physics.md 5, S3, FV 100x100x20 cells: 13.89066, 16.04823.
+    # docs/theory.md#spreading-check-cases, S3, FV 100x100x20 cells: 13.89066, 16.04823.
     got = theta_series(*S3_PLATE, *S3_SOURCES, n_terms=N_CHECK)
     np.testing.assert_allclose(got, [13.89066, 16.04823], rtol=RTOL_FV)
 
@@ -122,7 +122,7 @@ def test_one_centred_source_reproduces_centred_total():
 
 
 def _paper_form_series(c, d, t, k, h, q, x0, y0, a, b, n_terms):
-    """Direct, loop-by-loop transcription of physics.md 5b (A_m, A_n, A_mn coefficients)."""
+    """Direct, loop-by-loop transcription of docs/theory.md#multiple-and-eccentric-sources (A_m, A_n, A_mn coefficients)."""
     def phi(z):
         return float(spreading_function(z, t, k, h))
 
@@ -161,7 +161,7 @@ def _paper_form_series(c, d, t, k, h, q, x0, y0, a, b, n_terms):
 
 def test_multi_source_matches_paper_coefficient_form():
     # The module rewrites A_m, A_n, A_mn as factor matrices; a plain transcription of the
-    # coefficients in physics.md 5b must give the same truncated sum.
+    # coefficients in docs/theory.md#multiple-and-eccentric-sources must give the same truncated sum.
     plate = (0.06, 0.04, 0.004, 150.0, 800.0)
     sources = ([5.0, 12.0, 7.0], [0.012, 0.040, 0.030], [0.010, 0.025, 0.030],
                [0.008, 0.015, 0.010], [0.010, 0.012, 0.006])
@@ -173,7 +173,7 @@ def test_multi_source_matches_paper_coefficient_form():
 # --- check values: Song-Lee-Au -----------------------------------------------------------
 
 def test_song_lee_au_s1_intermediates_and_results():
-    # physics.md 5, S1: psi_avg 0.339409 -> R_s 0.084852; psi_max 0.534428 -> 0.133607,
+    # docs/theory.md#spreading-check-cases, S1: psi_avg 0.339409 -> R_s 0.084852; psi_max 0.534428 -> 0.133607,
     # + 0.400 film = 0.533607. psi = R sqrt(pi) k a with a = sqrt(A_s/pi).
     a = math.sqrt(4e-4 / math.pi)
     r_avg, r_peak = sla(S1), sla(S1, "peak")
@@ -185,12 +185,12 @@ def test_song_lee_au_s1_intermediates_and_results():
 
 
 def test_song_lee_au_peak_against_finite_volume_peak():
-    # physics.md 5, S1: SLA peak total 0.533607 vs FV peak 0.535417 (-0.3 %).
+    # docs/theory.md#spreading-check-cases, S1: SLA peak total 0.533607 vs FV peak 0.535417 (-0.3 %).
     assert sla(S1, "peak") + 1 / (1000.0 * 2.5e-3) == pytest.approx(0.535417, rel=RTOL_FV)
 
 
 def test_song_lee_au_peak_contains_one_d_conduction():
-    # Finding [N], physics.md 5c: psi_max = eps*tau/sqrt(pi) + (1-eps)*Phi/sqrt(pi) and
+    # Finding [N], docs/theory.md#song-lee-au-closed-form: psi_max = eps*tau/sqrt(pi) + (1-eps)*Phi/sqrt(pi) and
     # R = psi/(sqrt(pi) k a); the first term is eps*tau/(pi k a) = t/(k*pi*b^2) = t/(k A_p).
     # Hence (R_peak - t/(k A_p)) / R_avg = (1-eps)Phi / (0.5 (1-eps)^1.5 Phi sqrt(pi))
     #                                   = 2/(sqrt(pi) sqrt(1-eps)), for any t, k, h.
@@ -202,8 +202,8 @@ def test_song_lee_au_peak_contains_one_d_conduction():
 
 
 @pytest.mark.parametrize("case, r_s", [
-    (S2, 0.486881),  # physics.md 5, S2 [N]
-    (REF1, 0.084684),  # physics.md 8, REF-1 [N]
+    (S2, 0.486881),  # docs/theory.md#spreading-check-cases, S2 [N]
+    (REF1, 0.084684),  # docs/theory.md#ref-1-golden-case, REF-1 [N]
 ])
 def test_song_lee_au_check_values(case, r_s):
     assert sla(case) == pytest.approx(r_s, rel=RTOL_CHECK)
@@ -211,7 +211,7 @@ def test_song_lee_au_check_values(case, r_s):
 
 @pytest.mark.parametrize("case", [S1, S2, REF1], ids=["S1", "S2", "REF1"])
 def test_song_lee_au_within_8_percent_of_series(case):
-    # physics.md 5: "Song-Lee-Au vs series +-8 %" (S1 -6.1 %, S2 -4.8 %).
+    # docs/theory.md#spreading-check-cases: "Song-Lee-Au vs series +-8 %" (S1 -6.1 %, S2 -4.8 %).
     assert sla(case) == pytest.approx(r_centered(**case, n_terms=N_CHECK), rel=0.08)
 
 

@@ -3,7 +3,7 @@
 Formulas used by hand: Fourier's law for a plane layer, R = t/(k A); parallel paths add
 conductances, series layers add resistances; annulus area pi*(r_o^2 - r_i^2) = pi*p*(d - p) for
 outer diameter d and wall p. Material values are the module defaults (copper 385, FR-4 0.3
-W/(m K): common practice, no source). REF-1 numbers are from physics.md section 8 [N].
+W/(m K): common practice, no source). REF-1 numbers are from docs/theory.md#ref-1-golden-case [N].
 """
 import math
 
@@ -24,18 +24,18 @@ def test_slab_hand_calculation():
     # Fourier's law: 2 mm copper (k = 385) over 10 x 10 mm:
     # R = 0.002 / (385 * 1e-4) = 0.002 / 0.0385 = 0.051948052 K/W
     assert resistance_slab(0.002, 385.0, 1e-4) == pytest.approx(0.051948052, rel=1e-9)
-    # physics.md 8, REF-1 base 1-D: 0.005/(200 * 0.0025) = 0.010 K/W
+    # docs/theory.md#ref-1-golden-case, REF-1 base 1-D: 0.005/(200 * 0.0025) = 0.010 K/W
     assert resistance_slab(0.005, 200.0, 0.0025) == pytest.approx(0.010, rel=1e-12)
 
 
 def test_interface_hand_calculation():
-    # physics.md 8, REF-1 TIM: 0.1 K cm^2/W = 0.1e-4 K m^2/W over 4 cm^2 = 4e-4 m^2
+    # docs/theory.md#ref-1-golden-case, REF-1 TIM: 0.1 K cm^2/W = 0.1e-4 K m^2/W over 4 cm^2 = 4e-4 m^2
     # R = 0.1e-4 / 4e-4 = 0.025 K/W
     assert resistance_interface(0.1e-4, 4e-4) == pytest.approx(0.025, rel=1e-12)
 
 
 def test_stack_ref1_junction_total():
-    # physics.md 8, REF-1: R_total = R_jc 0.30 + TIM 0.025 + base 1-D 0.010 + R_s(series)
+    # docs/theory.md#ref-1-golden-case, REF-1: R_total = R_jc 0.30 + TIM 0.025 + base 1-D 0.010 + R_s(series)
     # 0.090111 + R_hs 0.369348 = 0.794459 K/W, T_j = 25 + 50 * 0.794459 = 64.7230 degC.
     layers = [0.30, resistance_interface(0.1e-4, 4e-4), resistance_slab(0.005, 200.0, 0.0025),
               0.090111, 0.369348]
