@@ -176,8 +176,14 @@ def describe_problem(problem) -> list[str]:
     out += ["", f"model: heat_transfer {o.heat_transfer}, hydraulic_diameter "
                 f"{o.hydraulic_diameter}, exit_loss {o.exit_loss}, fin_tip {o.fin_tip}, "
                 + ", ".join(f"{k} {getattr(o, k)}" for k in ("spreading", "coarse_terms", "air_heating",
-                                                   "series_terms") if hasattr(o, k)),
-            f"inputs: {', '.join(str(p) for p in problem.inputs)}"]
+                                                   "series_terms") if hasattr(o, k))]
+    if problem.calibration is not None:
+        c = problem.calibration
+        out.append(f"calibrated from {c.path.name}: " + ", ".join(
+            f"{k} × {v:.4g}" + (f" (95 % {c.intervals[k][0]:.3g} … {c.intervals[k][1]:.3g})"
+                                if k in c.intervals else "")
+            for k, v in c.multipliers.items()))
+    out.append(f"inputs: {', '.join(str(p) for p in problem.inputs)}")
     return out
 
 

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import dataclasses
 from dataclasses import dataclass, field
+from pathlib import Path
 
 import numpy as np
 
@@ -16,7 +17,7 @@ from sinkopt.model.design import ModelOptions, SinkGeometry
 from sinkopt.physics import heatsink as hs
 from sinkopt.physics.air import AirProperties
 
-__all__ = ["Measurements", "CalibrationFit", "CalibrationRefused", "PRESSURE_FITS",
+__all__ = ["Calibration", "Measurements", "CalibrationFit", "CalibrationRefused", "PRESSURE_FITS",
            "MULTIPLIERS", "fit_calibration", "model_at", "apply_multipliers"]
 
 #: How the pressure-drop points are fitted: ``split``, one multiplier on the channel friction
@@ -31,6 +32,17 @@ MAX_CORRELATION = 0.98
 #: Fewest points beyond the number of fitted multipliers (so the residual spread, and with it
 #: the interval, rests on at least this many degrees of freedom).
 MIN_DOF = 2
+
+
+@dataclass(frozen=True)
+class Calibration:
+    """A calibration a study runs on: the multipliers and the record of the fit behind them."""
+
+    path: Path
+    multipliers: dict[str, float]
+    intervals: dict[str, tuple[float, float]] = field(default_factory=dict)
+    points: tuple[dict, ...] = ()  #: measured points with the model before and after
+    info: dict = field(default_factory=dict)  #: source file, checksum, fit statistics
 
 
 class CalibrationRefused(ValueError):

@@ -9,6 +9,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from sinkopt.model.calibration import Calibration
 from sinkopt.model.design import Conditions, Device, ModelOptions
 
 __all__ = [
@@ -185,6 +186,8 @@ class Problem:
     source: Path | None = None  #: the study file
     description: str = ""
     inputs: tuple[Path, ...] = ()  #: every file read (study, fan curves, impedance curves)
+    #: The calibration the model runs on (``[model] calibration``), or None.
+    calibration: "Calibration | None" = None
 
     @property
     def slug(self) -> str:

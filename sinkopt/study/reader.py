@@ -28,7 +28,9 @@ import re
 import tomllib
 from pathlib import Path
 
+from sinkopt.model.calibration import apply_multipliers
 from sinkopt.study import catalogs
+from sinkopt.study.calibration_file import read_calibration
 from sinkopt.model.design import Conditions, Device, ModelOptions, MountingStack, SlabLayer, ViaLayer
 from sinkopt.errors import InputError
 from sinkopt.model.problem import (DEFAULT_SAMPLER, GEOMETRY_VARIABLES, OBJECTIVES, SAMPLERS, AirSupply,
@@ -72,7 +74,7 @@ _MODEL_CHOICES = {
 }
 #: Evaluation modes of sinkopt.model.evaluate (first: the search's default).
 _MODEL_MODES = {"spreading": ("coarse", "fast", "exact"), "air_heating": ("local", "lumped")}
-_MODEL_KEYS = (*_MODEL_CHOICES, *_MODEL_MODES, "series_terms", "coarse_terms")
+_MODEL_KEYS = (*_MODEL_CHOICES, *_MODEL_MODES, "series_terms", "coarse_terms", "calibration")
 _GEOMETRY_HINTS = {
     "width_mm": "across the flow",
     "length_mm": "along the flow",
@@ -520,9 +522,10 @@ def _constraints(root: Table):
     return Limits(**kw)
 
 
-def _model(root: Table):
+def _model(root: Table, base_dir: Path, inputs: list[Path]):
+    """Model options, and the calibration they run on; returns (options, calibration)."""
     data = root.table("model") or {}
-    known = {f.name for f in dataclasses.fields(ModelOptions)}
+    known = {f.name for f in dataclasses.fields(ModelOptions)} | {"calibration"}
     t = Table(data, "model", root.problems, [k for k in _MODEL_KEYS if k in known])
     defaults = ModelOptions()
     kw = {key: t.text(key, default=getattr(defaults, key), choices=_model_choices(key))
@@ -533,7 +536,25 @@ def _model(root: Table):
     for key in ("series_terms", "coarse_terms"):
         if key in known:
             kw[key] = t.integer(key, default=getattr(defaults, key), minimum=1)
-    return None if None in kw.values() else ModelOptions(**kw)
+    calibration = None
+    file = t.text("calibration")
+    if file is not None:
+        path = Path(base_dir or ".") / file
+        if not path.is_file():
+            t.add("calibration", f"no calibration file {show(file)} (relative to the study's "
+                                 "folder; write one with sinkopt calibrate)")
+        else:
+            try:
+                calibration = read_calibration(path)
+                inputs.append(path.resolve())
+            except InputError as exc:
+                t.add("calibration", str(exc))
+    if None in kw.values() or ("calibration" in data and calibration is None):
+        return None, None
+    options = ModelOptions(**kw)
+    if calibration is not None:
+        options = apply_multipliers(options, calibration.multipliers)
+    return options, calibration
 
 
 # ---- entry points ------------------------------------------------------------------------------
@@ -576,7 +597,7 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
     air = _air(root, base_dir, inputs)
     objectives = _objectives(root)
     limits = _constraints(root)
-    options = _model(root)
+    options, calibration = _model(root, base_dir, inputs)
     cross_check(problems, sink, devices, air, objectives, limits, ambient)
     problems.raise_if_any()
 
@@ -611,6 +632,7 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
         sampler=study["sampler"],
         description=study["description"] or "",
         inputs=tuple(inputs),
+        calibration=calibration,
     )
 
 
