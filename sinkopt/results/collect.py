@@ -76,6 +76,10 @@ def design_record(problem: Problem, result: BatchResult, i: int,
     rec["fin_efficiency"] = _clean(e.fin_efficiency[i])
     rec["heat_transfer_coefficient_W_m2K"] = _clean(e.h[i])
     rec["spreading"] = e.spreading
+    if problem.calibration is not None:
+        c = problem.calibration
+        rec["model_calibration"] = {"file": c.path.name, "multipliers": dict(c.multipliers),
+                                    "intervals_95": {k: list(v) for k, v in c.intervals.items()}}
     devices = []
     for j, d in enumerate(problem.devices):
         stack_name = result.params[i].get(f"mount_{d.name}", d.stacks[0].name if d.stacks else "")

@@ -23,7 +23,7 @@ from sinkopt import __version__
 from sinkopt.model.problem import Problem
 from sinkopt.results.collect import Results, SCHEMA_VERSION
 
-__all__ = ["write_results", "write_json", "redact_url", "run_info", "sha256_file",
+__all__ = ["write_results", "write_json", "redact_url", "run_info", "calibration_summary", "sha256_file",
            "trials_frame", "pareto_frame"]
 
 
@@ -72,6 +72,16 @@ def sha256_file(path: Path) -> str:
     return h.hexdigest()
 
 
+def calibration_summary(problem: Problem) -> dict[str, Any] | None:
+    """The calibration the model ran on (file, multipliers, 95 % intervals), or None."""
+    c = problem.calibration
+    if c is None:
+        return None
+    return {"file": c.path.name, "multipliers": dict(c.multipliers),
+            "intervals_95": {k: list(v) for k, v in c.intervals.items()},
+            "measured_file": c.info.get("measured_file"), "points": len(c.points)}
+
+
 def run_info(problem: Problem, *, seed, sampler, n_trials, command, storage_url, elapsed_s,
              states, warnings=()) -> dict[str, Any]:
     versions = {}
@@ -98,6 +108,7 @@ def run_info(problem: Problem, *, seed, sampler, n_trials, command, storage_url,
         "trial_states": states,
         "objectives": list(problem.objectives),
         "model_options": problem.options.__dict__,
+        "calibration": calibration_summary(problem),
         "inputs": {str(p): sha256_file(p) for p in problem.inputs if Path(p).is_file()},
         "warnings": list(warnings),
     }

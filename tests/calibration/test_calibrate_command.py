@@ -138,3 +138,20 @@ def test_a_bad_calibration_file_is_named_by_the_study_check(study, tmp_path, cap
     assert main(["check", str(study)]) == 2
     err = capsys.readouterr().err
     assert "model.calibration" in err and "unknown multiplier 'friktion'" in err
+
+
+def test_a_calibrated_run_records_its_calibration(study, tmp_path, capsys):
+    measured = prototype_csv(tmp_path)
+    assert main(["calibrate", str(study), str(measured)]) == 0
+    study.write_text(study.read_text() + '\n[model]\ncalibration = "proto.calibration.toml"\n')
+    out = tmp_path / "res"
+    assert main(["run", str(study), "--trials", "16", "--seed", "1", "--out", str(out),
+                 "--no-report", "--no-progress"]) in (0, 3)
+    run = json.loads((out / "run.json").read_text())
+    assert run["calibration"]["file"] == "proto.calibration.toml"
+    assert run["model_options"]["heat_transfer_multiplier"] == pytest.approx(
+        run["calibration"]["multipliers"]["heat_transfer"])
+    assert any(str(tmp_path / "proto.calibration.toml") == k for k in run["inputs"])
+    design = next((out / "designs").glob("*.json"), None)
+    if design is not None:
+        assert json.loads(design.read_text())["model_calibration"]["file"] == "proto.calibration.toml"

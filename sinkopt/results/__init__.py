@@ -1,0 +1,2 @@
+"""Results: the exact re-evaluation of the front, design records, the results folder and the HTML
+report."""
