@@ -153,13 +153,14 @@ def _blend_turbulent(dp_lam, re, k_minor, l_over_dh, dynamic, friction_multiplie
     turb = re > cv.RE_TRANSITION_START
     if not turb.any():
         return dp_lam[()]
-    parts = [np.asarray(x, dtype=float) for x in (k_minor, l_over_dh, dynamic)]
+    parts = [np.asarray(x, dtype=float)
+             for x in (k_minor, l_over_dh, dynamic, friction_multiplier)]
     shape = np.broadcast_shapes(dp_lam.shape, re.shape, *(x.shape for x in parts))
     if dp_lam.shape != shape or re.shape != shape:
         dp_lam, re = np.broadcast_to(dp_lam, shape), np.broadcast_to(re, shape)
         turb = np.broadcast_to(turb, shape)
-    k_minor, l_over_dh, dynamic = (x[turb] if x.shape == shape else np.broadcast_to(x, shape)[turb]
-                                   for x in parts)
+    k_minor, l_over_dh, dynamic, friction_multiplier = (
+        x[turb] if x.shape == shape else np.broadcast_to(x, shape)[turb] for x in parts)
     re_t = re[turb]
     lam = dp_lam[turb]
     f_turb = pd_.friction_fanning_turbulent_smooth(re_t) * friction_multiplier  # re_t > 2300
@@ -366,7 +367,7 @@ def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: Ai
         h_lam = (cv.nu_plate_fin_teertstra_2000(re_b_star, pr) * air.conductivity / b
                  * heat_transfer_multiplier)
         g_lam, eta_lam = finned_conductance(h_lam)
-        if heat_transfer_multiplier != 1.0:
+        if np.any(np.asarray(heat_transfer_multiplier) != 1.0):
             g_lam = np.minimum(g_lam, mcp)
     else:
         aspect = np.minimum(b, h_fin) / np.maximum(b, h_fin)

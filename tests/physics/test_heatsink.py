@@ -132,3 +132,34 @@ def test_turbulent_regime_is_continuous_and_monotone():
 def test_bad_option_names_the_choices():
     with pytest.raises(ValueError, match="exit_loss must be one of culham_muzychka, borda_carnot"):
         hs.sink_hydraulics(**REF1, flow=0.005, air=REF1_AIR, exit_loss="sudden")
+
+
+def test_calibration_multipliers_per_design_equal_the_scalar_calls():
+    """Multipliers given as arrays (one per design: the Monte-Carlo and calibration paths) give
+    each design what a scalar call gives it, laminar through turbulent (identity of the code)."""
+    from sinkopt.physics.air import air_properties
+
+    air = air_properties(298.15, 101325.0)
+    q = np.linspace(0.005, 0.05, 6)  # Re_Dh about 1.3e3 to 1.3e4
+    c = np.linspace(0.8, 1.25, 6)
+    arr = hs.sink_hydraulics(0.05, 0.05, 0.025, 0.001, 20, q, air, friction_multiplier=c,
+                             loss_multiplier=c[::-1]).pressure_drop
+    fast = hs.sink_pressure_drop_function(np.full(6, 0.05), 0.05, 0.025, 0.001, 20, air,
+                                          friction_multiplier=c, loss_multiplier=c[::-1])
+    th = hs.sink_thermal(0.05, 0.05, 0.025, 0.001, 20, q, air, 200.0,
+                         heat_transfer_multiplier=c).resistance
+    for i in range(6):
+        one = hs.sink_hydraulics(0.05, 0.05, 0.025, 0.001, 20, q[i], air,
+                                 friction_multiplier=c[i], loss_multiplier=c[::-1][i])
+        assert arr[i] == pytest.approx(float(one.pressure_drop), rel=1e-13)
+        assert fast(q)[i] == pytest.approx(float(one.pressure_drop), rel=1e-13)
+        r = hs.sink_thermal(0.05, 0.05, 0.025, 0.001, 20, q[i], air, 200.0,
+                            heat_transfer_multiplier=c[i]).resistance
+        assert th[i] == pytest.approx(float(r), rel=1e-13)
+    # more friction and loss: more pressure drop; more h: less resistance
+    base = hs.sink_hydraulics(0.05, 0.05, 0.025, 0.001, 20, q, air).pressure_drop
+    assert np.all(hs.sink_hydraulics(0.05, 0.05, 0.025, 0.001, 20, q, air, friction_multiplier=1.1,
+                                     loss_multiplier=1.1).pressure_drop > base)
+    assert np.all(hs.sink_thermal(0.05, 0.05, 0.025, 0.001, 20, q, air, 200.0,
+                                  heat_transfer_multiplier=1.1).resistance
+                  < hs.sink_thermal(0.05, 0.05, 0.025, 0.001, 20, q, air, 200.0).resistance)
