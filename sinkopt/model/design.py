@@ -154,6 +154,30 @@ class ModelOptions:
     loss_multiplier: float = 1.0
 
 
+@dataclass(frozen=True)
+class Perturbation:
+    """Per-design factors on the model's uncertain inputs (the uncertainty band's samples and
+    pessimistic corner); None = the nominal value. Shapes: (n,) or, per device, (n, s).
+
+    ``heat_transfer`` multiplies h, ``pressure_drop`` the sink's friction and loss coefficients,
+    ``fan_flow`` the fans' flow at a given pressure, ``power``/``r_jc``/``r_stack`` each device's
+    loss, junction-to-case and case-to-base resistance; ``ambient_K`` is added to the ambient.
+    """
+
+    heat_transfer: np.ndarray | None = None
+    pressure_drop: np.ndarray | None = None
+    fan_flow: np.ndarray | None = None
+    power: np.ndarray | None = None
+    r_jc: np.ndarray | None = None
+    r_stack: np.ndarray | None = None
+    ambient_K: np.ndarray | None = None
+
+    def take(self, index) -> "Perturbation":
+        return Perturbation(**{f: None if getattr(self, f) is None else
+                               np.asarray(getattr(self, f))[index]
+                               for f in self.__dataclass_fields__})
+
+
 def _first_bad(mask: np.ndarray) -> int:
     return int(np.flatnonzero(mask)[0])
 

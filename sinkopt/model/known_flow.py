@@ -11,7 +11,7 @@ from typing import Sequence
 
 import numpy as np
 
-from sinkopt.model.design import Conditions, Device, ModelOptions, SinkGeometry
+from sinkopt.model.design import Conditions, Device, ModelOptions, Perturbation, SinkGeometry
 from sinkopt.physics import geometry as geo
 from sinkopt.physics import heatsink as hs
 from sinkopt.physics import spreading as sp
@@ -103,7 +103,7 @@ def upstream_heat_fraction(center_y, size_y) -> np.ndarray:
 
 def evaluate(geometry: SinkGeometry, flow, devices: Sequence[Device], conductivity: float,
              density: float, conditions: Conditions, options: ModelOptions = ModelOptions(),
-             stack_choice=None) -> Evaluation:
+             stack_choice=None, perturb: Perturbation | None = None) -> Evaluation:
     """Evaluate n designs at volume flows ``flow`` (n,) [m^3/s] through the fins.
 
     Parameters
@@ -123,6 +123,10 @@ def evaluate(geometry: SinkGeometry, flow, devices: Sequence[Device], conductivi
         Correlation choices.
     stack_choice : array_like of int, optional
         (n, s) index of the mounting stack of each device in each design.
+    perturb : Perturbation, optional
+        Per-design factors on the devices' losses and resistances and a shift of the ambient
+        (the uncertainty band); its heat-transfer and pressure-drop factors are applied by the
+        caller through ``options``.
 
     Notes
     -----
@@ -144,13 +148,19 @@ def evaluate(geometry: SinkGeometry, flow, devices: Sequence[Device], conductivi
                          options.hydraulic_diameter, options.heat_transfer_multiplier)
     power = np.array([d.power for d in devices], dtype=float)
     s = len(devices)
-    total_power = power.sum()
+    p = perturb or Perturbation()
+    if p.power is not None:  # (n, s) losses, one row per design
+        power = power[None, :] * np.broadcast_to(p.power, (n, s))
+        total_power = power.sum(axis=1)
+    else:
+        total_power = power.sum()
     air_rise = total_power / th.mass_flow_heat_capacity
     base_area = g.width * g.length
     if options.air_heating == "local":
         fraction = upstream_heat_fraction([d.center_y for d in devices],
                                           [d.size_y for d in devices])
-        air_local = (fraction @ power)[None, :] / th.mass_flow_heat_capacity[:, None]
+        air_local = ((power @ fraction.T) if power.ndim == 2 else (fraction @ power)[None, :]) \
+            / th.mass_flow_heat_capacity[:, None]
         r_film = th.resistance_convective
     elif options.air_heating == "lumped":
         air_local = np.zeros((n, s))
@@ -169,8 +179,16 @@ def evaluate(geometry: SinkGeometry, flow, devices: Sequence[Device], conductivi
                                    power, *src, n_terms=terms)).reshape(n, s)
     r_jc = np.tile(np.array([d.r_jc for d in devices], dtype=float), (n, 1))
     r_stack = stack_resistances(devices, n, stack_choice)
+    if p.r_jc is not None:
+        r_jc = r_jc * p.r_jc
+    if p.r_stack is not None:
+        r_stack = r_stack * p.r_stack
     t_in = conditions.ambient_C
-    tj = t_in + air_local + base_rise + power[None, :] * (r_jc + r_stack)
+    if p.ambient_K is not None:
+        t_in = t_in + np.broadcast_to(np.asarray(p.ambient_K, dtype=float), (n,))
+    t_in_col = t_in[:, None] if np.ndim(t_in) else t_in
+    tj = t_in_col + air_local + base_rise + (power if power.ndim == 2 else power[None, :]) \
+        * (r_jc + r_stack)
     tj_max = np.array([d.tj_max for d in devices], dtype=float)
     margin = tj_max[None, :] - tj
     worst = margin.min(axis=1) if s else np.full(n, np.inf)

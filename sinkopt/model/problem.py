@@ -11,6 +11,7 @@ from typing import Any
 
 from sinkopt.model.calibration import Calibration
 from sinkopt.model.design import Conditions, Device, ModelOptions
+from sinkopt.model.uncertainty_spec import DEFAULT_UNCERTAINTY, UncertaintySpec
 
 __all__ = [
     "SAMPLERS",
@@ -164,6 +165,9 @@ class Limits:
     max_fan_power_W: float | None = None
     max_pressure_drop_Pa: float | None = None
     allow_stall: bool = False
+    #: What the junction-margin constraint and objective use: "nominal", "pessimistic" (every
+    #: uncertain input at its hot-side bound) or "p95" (5th percentile of the margin, first order).
+    margin_basis: str = "nominal"
 
 
 @dataclass(frozen=True)
@@ -188,6 +192,8 @@ class Problem:
     inputs: tuple[Path, ...] = ()  #: every file read (study, fan curves, impedance curves)
     #: The calibration the model runs on (``[model] calibration``), or None.
     calibration: "Calibration | None" = None
+    #: The uncertain inputs (``[uncertainty]``): the band of every Pareto design, robust search.
+    uncertainty: UncertaintySpec = DEFAULT_UNCERTAINTY
 
     @property
     def slug(self) -> str:

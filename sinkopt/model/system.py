@@ -14,7 +14,8 @@ from typing import Any, Sequence
 
 import numpy as np
 
-from sinkopt.model.design import ModelOptions, SinkGeometry
+from sinkopt.model.design import ModelOptions, Perturbation, SinkGeometry
+from sinkopt.model.uncertainty_spec import Z_95, corner, first_order_steps
 from sinkopt.fans import FanArray
 from sinkopt.fans.operating_point import solve_operating_points
 from sinkopt.model.known_flow import Evaluation, evaluate, inlet_air
@@ -157,6 +158,10 @@ class BatchResult:
     feasible: np.ndarray
     failed_fan_margin: np.ndarray | None = None  #: worst margin with one fan stopped [K]
     extras: dict[str, np.ndarray] = field(default_factory=dict)
+    #: The margin the constraint and objective use when the study's margin basis is not
+    #: "nominal": the worst margin at the pessimistic corner, or its first-order 5th percentile.
+    basis_margin: np.ndarray | None = None
+    margin_basis: str = "nominal"
 
     def __len__(self) -> int:
         return len(self.flow_total)
@@ -199,6 +204,8 @@ class BatchResult:
             cols[f"margin_{name}_K"] = e.margin[:, j]
         if self.failed_fan_margin is not None:
             cols["failed_fan_margin_K"] = self.failed_fan_margin
+        if self.basis_margin is not None:
+            cols[f"{self.margin_basis}_margin_K"] = self.basis_margin
         return cols
 
     def warnings(self, i: int) -> list[str]:
@@ -305,7 +312,17 @@ def _system_dp_function(problem: Problem, g: SinkGeometry, air, options: ModelOp
     return system_dp
 
 
-def _solve_fans(problem, cols, g, air, options, valid, failed=0, fan_codes=None):
+_MULTIPLIERS = ("heat_transfer_multiplier", "friction_multiplier", "loss_multiplier")
+
+
+def _options_take(options: ModelOptions, index) -> ModelOptions:
+    """``options`` for the designs ``index`` of the batch (per-design multipliers taken)."""
+    over = {k: np.asarray(getattr(options, k))[index] for k in _MULTIPLIERS
+            if np.ndim(getattr(options, k))}
+    return ModelOptions(**{**options.__dict__, **over}) if over else options
+
+
+def _solve_fans(problem, cols, g, air, options, valid, failed=0, fan_codes=None, fan_flow=None):
     n = len(g)
     flow = np.full(n, np.nan)
     dp = np.full(n, np.nan)
@@ -338,8 +355,16 @@ def _solve_fans(problem, cols, g, air, options, valid, failed=0, fan_codes=None)
                     else np.zeros(sel.size))
         s = lo[gsel] + fraction * span[gsel]
         sub = g if sel.size == n else g.take(sel)
-        op = solve_operating_points(arrays, gsel, _system_dp_function(problem, sub, air, options),
-                                    speed_ratio=s, air_density=float(air.density),
+        density = float(air.density)
+        solve_speed = s
+        if fan_flow is not None:
+            # A fan delivering c times its curve's flow at every pressure is, by the fan laws,
+            # the fan at speed c s in air of density ρ/c²: Δp = (ρ/c²)/ρ_ref (cs)² p(Q/(cs)).
+            c = np.broadcast_to(np.asarray(fan_flow, dtype=float), (n,))[sel]
+            solve_speed, density = s * c, density / (c * c)
+        sub_options = options if sel.size == n else _options_take(options, sel)
+        op = solve_operating_points(arrays, gsel, _system_dp_function(problem, sub, air, sub_options),
+                                    speed_ratio=solve_speed, air_density=density,
                                     efficiency=efficiency)
         flow[sel], dp[sel] = op.flow_m3_s, op.pressure_Pa
         power[sel], noise[sel], speed[sel] = op.electrical_power_W, op.noise_dBA, s
@@ -355,13 +380,18 @@ def _fin_flow(problem, g, flow, air, options):
     flow_fins = np.full(len(g), np.nan)
     ok = np.isfinite(flow)
     if ok.any():
-        flow_fins[ok] = system_pressure_drop(problem, g.take(ok), flow[ok], air, options)[1]
+        flow_fins[ok] = system_pressure_drop(problem, g.take(ok), flow[ok], air,
+                                             _options_take(options, ok))[1]
     return flow_fins
 
 
-def evaluate_params(problem: Problem, params, spreading: str | None = None) -> BatchResult:
+def evaluate_params(problem: Problem, params, spreading: str | None = None,
+                    perturb: Perturbation | None = None) -> BatchResult:
     """Evaluate designs given as parameter dictionaries, or as a dict of columns (one array per
-    variable, the fast path for large batches); fixed variables may be left out."""
+    variable, the fast path for large batches); fixed variables may be left out.
+
+    ``perturb`` gives per-design factors on the uncertain inputs (sinkopt.model.uncertainty):
+    the fan operating point is solved again with them."""
     cols = to_columns(problem, params)
     n = len(next(iter(cols.values())))
     if n >= TUNE_ALLOCATOR_MIN_DESIGNS and not _allocator_tuned:
@@ -369,6 +399,18 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None) -> B
     options = problem.options
     if spreading is not None:
         options = ModelOptions(**{**options.__dict__, "spreading": spreading})
+    fan_flow = None
+    if perturb is not None:
+        over = {}
+        if perturb.heat_transfer is not None:
+            over["heat_transfer_multiplier"] = options.heat_transfer_multiplier * np.asarray(
+                perturb.heat_transfer, dtype=float)
+        if perturb.pressure_drop is not None:
+            dp = np.asarray(perturb.pressure_drop, dtype=float)
+            over["friction_multiplier"] = options.friction_multiplier * dp
+            over["loss_multiplier"] = options.loss_multiplier * dp
+        options = ModelOptions(**{**options.__dict__, **over})
+        fan_flow = perturb.fan_flow
     g = _geometry(problem, cols)
     mounts = _stack_choice(problem, cols, n)
     valid = (g.n_fins >= 2) & (g.n_fins * g.fin_thickness < g.width)
@@ -386,7 +428,8 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None) -> B
     failed_margin = None
     if problem.air.uses_fans:
         flow, dp, power, noise, speed, stall, labels, codes = _solve_fans(problem, cols, safe, air,
-                                                                          options, valid)
+                                                                          options, valid,
+                                                                          fan_flow=fan_flow)
         flow_fins = _fin_flow(problem, safe, flow, air, options)
     else:
         if problem.air.fixed_flow_m3_s is not None:
@@ -403,19 +446,22 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None) -> B
     with np.errstate(invalid="ignore", divide="ignore"):
         ev = evaluate(safe, np.where(no_air, np.nan, flow_fins), problem.devices,
                       problem.conductivity, problem.density, problem.conditions, options,
-                      stack_choice=mounts)
+                      stack_choice=mounts, perturb=perturb)
     if problem.air.uses_fans and problem.air.failed_fan_check:
         f_flow, *_ = _solve_fans(problem, cols, safe, air, options, valid & ~no_air, failed=1,
-                                 fan_codes=codes)
+                                 fan_codes=codes, fan_flow=fan_flow)
         f_fins = _fin_flow(problem, safe, f_flow, air, options)
         with np.errstate(invalid="ignore", divide="ignore"):
             failed_margin = evaluate(safe, f_fins, problem.devices, problem.conductivity,
                                      problem.density, problem.conditions, options,
-                                     stack_choice=mounts).worst_margin
+                                     stack_choice=mounts, perturb=perturb).worst_margin
     bad = no_air | ~valid
     result = BatchResult(cols, ev, labels, flow, flow_fins, dp, power, noise, speed, stall,
                          no_air, valid, np.empty((n, 0)), {}, np.zeros(n, dtype=bool),
                          failed_margin)
+    if problem.limits.margin_basis != "nominal" and perturb is None:
+        result.margin_basis = problem.limits.margin_basis
+        result.basis_margin = np.where(bad, -PENALTY, _robust_margin(problem, cols, spreading, ev))
     result.constraints = _constraints(problem, result, g, bad)
     feasible = ~bad
     for v in result.constraints.values():
@@ -425,11 +471,32 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None) -> B
     return result
 
 
+def _robust_margin(problem: Problem, cols, spreading, ev: Evaluation) -> np.ndarray:
+    """The worst margin on the study's margin basis (docs/theory.md#uncertainty-band-and-sensitivity):
+    at the pessimistic corner (fan point re-solved), or nominal − 1.645 σ per device with σ from
+    one-input steps (first order)."""
+    n, s = len(ev), len(problem.devices)
+    spec = problem.uncertainty
+    if problem.limits.margin_basis == "pessimistic":
+        hot = evaluate_params(problem, cols, spreading, perturb=corner(spec, n, s))
+        return np.where(hot.no_airflow | ~hot.valid_geometry, -PENALTY,
+                        hot.evaluation.worst_margin)
+    var = np.zeros((n, s))
+    for _, step in first_order_steps(spec, n, s):
+        r = evaluate_params(problem, cols, spreading, perturb=step)
+        d = r.evaluation.junction_C - ev.junction_C
+        var += np.where(np.isfinite(d), d, PENALTY) ** 2
+    margin = ev.margin - Z_95 * np.sqrt(var)
+    return margin.min(axis=1) if s else np.full(n, np.inf)
+
+
 def _objectives(problem: Problem, r: BatchResult, bad: np.ndarray) -> np.ndarray:
     cols = r.columns()
     out = np.empty((len(r), len(problem.objectives)))
     for k, name in enumerate(problem.objectives):
         column, direction = OBJECTIVES[name]
+        if name == "junction_margin" and r.basis_margin is not None:
+            column = f"{r.margin_basis}_margin_K"
         v = np.asarray(cols[column], dtype=float)
         worst = PENALTY if direction == "minimize" else -PENALTY
         out[:, k] = np.where(bad | ~np.isfinite(v), worst, v)
@@ -441,7 +508,8 @@ def _constraints(problem: Problem, r: BatchResult, g: SinkGeometry, bad) -> dict
     e = r.evaluation
     lim, proc = problem.limits, problem.process
     c: dict[str, np.ndarray] = {}
-    c["junction_margin_K"] = lim.min_junction_margin_K - e.worst_margin
+    margin = e.worst_margin if r.basis_margin is None else r.basis_margin
+    c["junction_margin_K"] = lim.min_junction_margin_K - margin
     c["fin_gap_mm"] = (proc.min_gap_m - (g.width - g.n_fins * g.fin_thickness)
                        / np.maximum(g.n_fins - 1, 1)) * 1e3
     c["fin_thickness_mm"] = (proc.min_fin_thickness_m - g.fin_thickness) * 1e3

@@ -380,11 +380,11 @@ def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: Ai
     re = velocity * dh / nu_kin
     w = cv.transition_weight(re)
 
-    def turbulent(re, dh, a_base, n, a_fin, fin_length, k_s, t, mcp):
+    def turbulent(re, dh, a_base, n, a_fin, fin_length, k_s, t, mcp, multiplier):
         re_t = np.maximum(re, cv.RE_TRANSITION_START)
         h_turb = cv.nu_turbulent_gnielinski_1976(
             re_t, pr, cv.friction_darcy_smooth_petukhov_1970(re_t)) * air.conductivity / dh
-        h_turb = h_turb * heat_transfer_multiplier
+        h_turb = h_turb * multiplier
         eta = fn.fin_efficiency_straight_rectangular(fn.fin_parameter(h_turb, k_s, t) * fin_length)
         ua_t = h_turb * (a_base + n * eta * a_fin)
         return h_turb, eta, cv.effectiveness_isothermal_wall(ua_t / mcp) * mcp
@@ -392,7 +392,8 @@ def sink_thermal(width, length, fin_height, fin_thickness, n_fins, flow, air: Ai
     def blend(w, lam, turb):
         return (1.0 - w) * lam + w * turb
 
-    parts = (re, dh, a_base, n, a_fin, fin_length, k_s, t, mcp)
+    parts = (re, dh, a_base, n, a_fin, fin_length, k_s, t, mcp,
+             np.asarray(heat_transfer_multiplier, dtype=float))
     shape = np.broadcast_shapes(*(np.shape(x) for x in parts + (g_lam, h_lam, eta_lam, w)))
     # w = 0 gives the laminar values exactly: the turbulent branch only elsewhere (and at NaN)
     blended = ~(w <= 0)

@@ -20,6 +20,7 @@ from optuna.trial import TrialState
 from sinkopt.search.pareto import nondominated_mask, to_minimization
 from sinkopt.model.problem import OBJECTIVES, Problem
 from sinkopt.model.system import BatchResult, evaluate_params
+from sinkopt.model.uncertainty import Band, junction_band
 
 __all__ = ["Results", "collect_results", "design_record", "evaluate_command",
            "SCHEMA_VERSION", "REVIEW_MARGIN_K"]
@@ -70,6 +71,9 @@ def design_record(problem: Problem, result: BatchResult, i: int,
                 "air_outlet_C", "worst_margin_K", "fin_gap_mm", "fin_aspect",
                 "channel_velocity_m_s", "reynolds_dh", "in_stall", "no_airflow"):
         rec[key] = _clean(cols[key][i])
+    if result.basis_margin is not None:
+        rec["margin_basis"] = result.margin_basis
+        rec[f"{result.margin_basis}_margin_K"] = _clean(result.basis_margin[i])
     rec["air_density_kg_m3"] = _clean(e.air_density[i])
     rec["ambient_C"] = problem.conditions.ambient_C
     rec["altitude_m"] = problem.conditions.altitude_m
@@ -126,6 +130,7 @@ class Results:
     exact: BatchResult | None  #: the reviewed candidates, exact series
     exact_trials: np.ndarray  #: trial numbers of ``exact``'s rows
     states: dict[str, int] = field(default_factory=dict)
+    band: Band | None = None  #: uncertainty band of the Pareto designs, in pareto_trials order
 
     @property
     def directions(self) -> list[str]:
@@ -137,14 +142,18 @@ class Results:
             return out
         where = {int(t): k for k, t in enumerate(self.exact_trials)}
         search_where = {int(t): k for k, t in enumerate(self.trial_numbers)}
-        for t in self.pareto_trials:
-            out.append(design_record(self.problem, self.exact, where[int(t)], int(t),
-                                     self.search, search_where[int(t)]))
+        for k, t in enumerate(self.pareto_trials):
+            rec = design_record(self.problem, self.exact, where[int(t)], int(t),
+                                self.search, search_where[int(t)])
+            if self.band is not None:
+                rec["uncertainty"] = self.band.record(k)
+            out.append(rec)
         return out
 
 
-def collect_results(problem: Problem, study: optuna.Study) -> Results:
-    """Re-evaluate the study's complete trials and decide the front on the exact series."""
+def collect_results(problem: Problem, study: optuna.Study, with_band: bool = True) -> Results:
+    """Re-evaluate the study's complete trials and decide the front on the exact series; with
+    ``with_band``, the uncertainty band of every Pareto design (sinkopt.model.uncertainty)."""
     trials = study.get_trials(deepcopy=False)
     states: dict[str, int] = {}
     for t in trials:
@@ -182,4 +191,10 @@ def collect_results(problem: Problem, study: optuna.Study) -> Results:
         f = to_minimization(exact.objectives[feasible],
                             [OBJECTIVES[o][1] for o in problem.objectives])
         front[np.flatnonzero(feasible)[nondominated_mask(f)]] = True
-    return Results(problem, numbers, search, numbers[idx][front], exact, numbers[idx], states)
+    pareto = numbers[idx][front]
+    band = None
+    if front.any() and with_band:
+        # the same draws for every design (seeded from the study): the band is reproducible
+        band = junction_band(problem, [complete[i].params for i in idx[front]],
+                             problem.uncertainty)
+    return Results(problem, numbers, search, pareto, exact, numbers[idx], states, band)

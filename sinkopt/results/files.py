@@ -148,6 +148,17 @@ def pareto_frame(results: Results):
             row[f"tj_{d['name']}_C"] = d["junction_C"]
             row[f"margin_{d['name']}_K"] = d["margin_K"]
             row[f"mounting_{d['name']}"] = d["mounting"]
+        band = rec.get("uncertainty")
+        if band:
+            row["p_exceed"] = band["p_exceed"]
+            row["corner_margin_K"] = band["pessimistic_margin_K"]
+            row["mc_p95_margin_K"] = band["p95_margin_K"]
+            for name, d in band["devices"].items():
+                row[f"tj_{name}_p95_C"] = d["p95_C"]
+                row[f"tj_{name}_corner_C"] = d["pessimistic_C"]
+            ranked = list(band["sensitivity"].items())
+            row["dominant_input"] = (f"{ranked[0][0]} ({ranked[0][1]:.0%})"
+                                     if ranked and ranked[0][1] > 0 else "")
         diffs = rec.get("spreading_check", {}).get("junction_difference_K", {})
         if diffs:
             vals = [abs(v) for v in diffs.values() if v is not None]

@@ -29,6 +29,8 @@ import tomllib
 from pathlib import Path
 
 from sinkopt.model.calibration import apply_multipliers
+from sinkopt.model.uncertainty_spec import (DEFAULT_UNCERTAINTY, DISTRIBUTIONS, MARGIN_BASES,
+                                            InputUncertainty, UncertaintySpec)
 from sinkopt.study import catalogs
 from sinkopt.study.calibration_file import read_calibration
 from sinkopt.model.design import Conditions, Device, ModelOptions, MountingStack, SlabLayer, ViaLayer
@@ -42,7 +44,8 @@ from sinkopt.study.schema import (PROCESS_KEYS, PROCESS_PRESETS, Problems, Table
 __all__ = ["load_study", "parse_study", "fan_label", "fan_choices", "fan_speed_ratio",
            "mount_variable", "SAMPLERS", "SECTIONS", "FAN_SPEED_MAX"]
 
-SECTIONS = ("study", "ambient", "device", "sink", "air", "objectives", "constraints", "model")
+SECTIONS = ("study", "ambient", "device", "sink", "air", "objectives", "constraints", "model",
+            "uncertainty")
 #: Highest allowed fan speed, as a fraction of the rated speed (fan laws beyond the data).
 FAN_SPEED_MAX = 1.2
 #: Default junction margin [K]: common practice is 10-25 K below tj_max (common practice, no source).
@@ -65,7 +68,7 @@ _AIR_KEYS = ("fan", *_FLOW_KEYS, "approach_velocity_m_per_s", "base_in_airstream
 _FAN_KEYS = ("file", "count", "arrangement", "speed", "efficiency")
 _CONSTRAINT_KEYS = ("min_junction_margin_K", "max_air_rise_K", "max_noise_dBA", "max_width_mm",
                     "max_length_mm", "max_height_mm", "max_mass_kg", "max_fan_power_W",
-                    "max_pressure_drop_Pa", "allow_stall")
+                    "max_pressure_drop_Pa", "allow_stall", "margin_basis")
 _MODEL_CHOICES = {
     "heat_transfer": "sinkopt.physics.heatsink:HEAT_TRANSFER_MODELS",
     "hydraulic_diameter": "sinkopt.physics.heatsink:HYDRAULIC_DIAMETERS",
@@ -510,16 +513,56 @@ def _constraints(root: Table):
     kw = {"min_junction_margin_K": t.number("min_junction_margin_K", "K", default=DEFAULT_MARGIN_K,
                                             minimum=0)}
     units = {"K": "K", "dBA": "dB(A)", "mm": "mm", "kg": "kg", "W": "W", "Pa": "Pa"}
-    for key in _CONSTRAINT_KEYS[1:-1]:
+    for key in _CONSTRAINT_KEYS[1:-2]:
         unit = key.rsplit("_", 1)[1]
         v = t.number(key, units[unit], minimum=0, exclusive=True)
         name = key.replace("_mm", "_m")
         kw[name] = None if v is None else (v * 1e-3 if unit == "mm" else v)
     kw["allow_stall"] = t.boolean("allow_stall", default=False)
+    kw["margin_basis"] = t.text("margin_basis", default="nominal", choices=MARGIN_BASES)
     bad = [k for k in data if k in _CONSTRAINT_KEYS and kw.get(k.replace("_mm", "_m")) is None]
-    if bad or kw["min_junction_margin_K"] is None or kw["allow_stall"] is None:
+    if bad or None in (kw["min_junction_margin_K"], kw["allow_stall"], kw["margin_basis"]):
         return None
     return Limits(**kw)
+
+
+_UNCERTAIN_INPUTS = ("heat_transfer", "pressure_drop", "fan_flow", "power", "r_jc", "interface")
+_UNCERTAINTY_KEYS = (*_UNCERTAIN_INPUTS, "ambient_K", "power_correlation", "samples", "seed")
+
+
+def _uncertainty(root: Table):
+    """The ``[uncertainty]`` table over the defaults (sinkopt.model.uncertainty_spec)."""
+    data = root.table("uncertainty") or {}
+    t = Table(data, "uncertainty", root.problems, _UNCERTAINTY_KEYS)
+    d = DEFAULT_UNCERTAINTY
+    kw: dict = {}
+    ok = True
+    for key in (*_UNCERTAIN_INPUTS, "ambient_K"):
+        name = "ambient" if key == "ambient_K" else key
+        default = getattr(d, name)
+        value = data.get(key)
+        unit, top = ("K", 50.0) if key == "ambient_K" else ("-", 0.9)
+        if value is None:
+            kw[name] = default
+            continue
+        if isinstance(value, dict):
+            sub = Table(value, t.at(key), root.problems, ("size", "distribution"))
+            size = sub.number("size", unit, required=True, minimum=0, maximum=top,
+                              hint="relative standard uncertainty, or half-width if uniform")
+            dist = sub.text("distribution", default=default.distribution, choices=DISTRIBUTIONS)
+        else:
+            size = t.number(key, unit, minimum=0, maximum=top)
+            dist = default.distribution
+        if size is None or dist is None:
+            ok = False
+            continue
+        kw[name] = InputUncertainty(size, dist, "set in the study")
+    rho = t.number("power_correlation", "-", default=d.power_correlation, minimum=0, maximum=1)
+    samples = t.integer("samples", default=d.samples, minimum=100)
+    seed = t.integer("seed", default=d.seed, minimum=0)
+    if not ok or None in (rho, samples, seed):
+        return None
+    return UncertaintySpec(**kw, power_correlation=rho, samples=samples, seed=seed)
 
 
 def _model(root: Table, base_dir: Path, inputs: list[Path]):
@@ -598,6 +641,7 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
     objectives = _objectives(root)
     limits = _constraints(root)
     options, calibration = _model(root, base_dir, inputs)
+    uncertainty = _uncertainty(root)
     cross_check(problems, sink, devices, air, objectives, limits, ambient)
     problems.raise_if_any()
 
@@ -633,6 +677,7 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
         description=study["description"] or "",
         inputs=tuple(inputs),
         calibration=calibration,
+        uncertainty=uncertainty,
     )
 
 
