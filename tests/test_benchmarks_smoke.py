@@ -48,3 +48,14 @@ def test_search_quality_smoke(capsys):
     assert len(rows) == 2
     for _, a, b in rows:
         assert 0.0 <= float(a) <= float(b) <= 1.0 + 1e-12  # HV can only grow with evaluations
+
+
+def test_uncertainty_benchmark_smoke():
+    """The band's fast form agrees with the exact series on the same draws (a check of
+    agreement, not of speed)."""
+    bench = _load("uncertainty")
+    out = bench.main(["--trials", "40", "--samples", "100", "--check-designs", "3",
+                      "--check-samples", "20", "--quiet"])
+    assert out["front"] > 0
+    assert out["error_corrected_K"][0] < 0.05  # K: the correction leaves a few mK
+    assert out["error_corrected_K"][0] <= out["error_uncorrected_K"][0]
