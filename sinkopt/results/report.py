@@ -1,75 +1,85 @@
 """The self-contained HTML report of a results folder (``report.html``).
 
-One file that works with no network: plotly.js is inlined once, the page's own script and style
-come from ``sinkopt/results/report_assets/``, and the data (:func:`sinkopt.results.report_data.report_data`) plus
-the per-design figures built here are embedded as JSON in ``<script type="application/json">``
-blocks. A Content-Security-Policy ``<meta>`` forbids every network request from the page.
+One file that works with no network: the page's own script and style come from
+``sinkopt/results/report_assets/``, the data (:func:`sinkopt.results.report_data.report_data`) is
+embedded once as compact JSON in a ``<script type="application/json">`` block, and plotly.js is
+embedded once, gzip-compressed and base64-encoded (4.8 MB of minified plotly.js becomes ~2 MB);
+the page unpacks it with the browser's ``DecompressionStream`` and runs it. The page's script
+draws every figure from the data: the Pareto front, the parallel coordinates, each design's
+drawings and fan/system and breakdown charts. A Content-Security-Policy ``<meta>`` forbids every
+network request from the page.
 
 Safety of user text: every string from the study or fan files reaches the page either through
 :func:`html.escape` (the static tables written here) or through ``textContent`` (the page's
 script); the embedded JSON has ``<``, ``>`` and ``&`` written as ``\\u003c`` etc., so no name can
-close the ``<script>`` block; text handed to plotly (which reads a few HTML-like tags) is escaped
-too.
+close the ``<script>`` block; text the page hands to plotly (which reads a few HTML-like tags) is
+escaped there.
 
-The figure functions return plain plotly figure dicts (``{"data": [...], "layout": {...}}``,
-checked against plotly's schema by the tests); plotly itself is imported only to inline
-plotly.js.
+Size: numbers are written with 6 significant digits (the curves, drawn only, with 4), integral
+values as integers; see ``benchmarks/README.md`` for the demo report's size and load time.
 """
 from __future__ import annotations
 
+import base64
 import datetime as _dt
+import functools
+import gzip
 import html
 import json
 import math
 import os
+import re
 from importlib import resources
 from pathlib import Path
 from typing import Any, Sequence
 
 from sinkopt.results.collect import Results
 
-__all__ = ["write_report", "render_report", "report_figures", "fan_system_figure",
-           "breakdown_figure", "parcoords_figure", "json_for_script", "CSP"]
+__all__ = ["write_report", "render_report", "json_for_script", "plotly_payload", "CSP"]
 
 #: Content-Security-Policy of the page: no request leaves the file (plotly.js needs inline
-#: script, eval for its WebGL shaders, inline styles and data:/blob: images).
+#: script, eval for its WebGL shaders and to run its unpacked bundle, inline styles and
+#: data:/blob: images).
 CSP = ("default-src 'none'; script-src 'unsafe-inline' 'unsafe-eval'; "
        "style-src 'unsafe-inline'; img-src data: blob:; font-src data:; worker-src blob:; "
        "connect-src 'none'; form-action 'none'; base-uri 'none'")
 
-#: Neutral palette: text, muted, grid, accent, highlight, stall shading.
-INK = "#1f2328"
-MUTED = "#6a7077"
-GRID = "#e3e5e8"
-ACCENT = "#2f5d7c"
-WARM = "#b5652b"
-BREAKDOWN_COLOURS = ("#9fb3c2", "#2f5d7c", "#c7a15a", "#7b4f6e")
-BREAKDOWN_LABELS = {
-    "air_heating_upstream": "air heated by upstream devices",
-    "sink_and_spreading": "sink and base spreading",
-    "mounting_stack": "mounting stack (case to sink)",
-    "junction_to_case": "junction to case",
-}
-FONT = {"family": "system-ui, -apple-system, 'Segoe UI', Roboto, Helvetica, Arial, sans-serif",
-        "size": 12, "color": INK}
+#: Significant digits of the numbers in the page's data, and of the curves (drawn only).
+DIGITS = 6
+CURVE_DIGITS = 4
 
 
-def _t(s: Any) -> str:
-    """Text for plotly (it reads a few HTML-like tags): escaped."""
-    return html.escape(str(s), quote=False)
+def _round(v: Any, digits: int = DIGITS) -> Any:
+    """Round floats to ``digits`` significant digits, recursively (smaller page); integral
+    values become ints, non-finite ones None.
 
-
-def _round(v: Any, digits: int = 6) -> Any:
-    """Round floats to ``digits`` significant digits, recursively (smaller page)."""
+    >>> _round({"a": [1.23456789, 2.0, float("nan")], "b": "text", "c": 7})
+    {'a': [1.23457, 2, None], 'b': 'text', 'c': 7}
+    """
     if isinstance(v, float):
         if not math.isfinite(v):
             return None
-        return float(f"{v:.{digits}g}")
+        r = float(f"{v:.{digits}g}")
+        return int(r) if r.is_integer() and abs(r) < 1e15 else r
     if isinstance(v, dict):
         return {k: _round(x, digits) for k, x in v.items()}
     if isinstance(v, (list, tuple)):
         return [_round(x, digits) for x in v]
     return v
+
+
+def _compact(data: dict[str, Any]) -> dict[str, Any]:
+    """The page's copy of the report data: curves with :data:`CURVE_DIGITS`, every other number
+    with :data:`DIGITS` significant digits."""
+    data = dict(data)
+    data["fans"] = {k: dict(f, flow_m3_s=_round(f["flow_m3_s"], CURVE_DIGITS),
+                            pressure_Pa=_round(f["pressure_Pa"], CURVE_DIGITS))
+                    for k, f in data.get("fans", {}).items()}
+    designs = dict(data["designs"])
+    designs["by_trial"] = {k: dict(d, system_Pa=_round(d["system_Pa"], CURVE_DIGITS))
+                           for k, d in designs["by_trial"].items()}
+    data["designs"] = designs
+    return _round(data)
 
 
 def json_for_script(data: Any) -> str:
@@ -101,154 +111,6 @@ def _json_default(o):
     if isinstance(o, Path):
         return str(o)
     raise TypeError(f"not JSON serialisable: {type(o).__name__}")
-
-
-def _scatter(**kw) -> dict[str, Any]:
-    return {"type": "scatter", **kw}
-
-
-def _bar(**kw) -> dict[str, Any]:
-    return {"type": "bar", **kw}
-
-
-def _base_layout(**extra) -> dict[str, Any]:
-    layout = {"font": FONT, "paper_bgcolor": "rgba(0,0,0,0)", "plot_bgcolor": "#ffffff",
-              "margin": {"l": 60, "r": 20, "t": 30, "b": 50}, "hovermode": "closest",
-              "legend": {"orientation": "h", "y": -0.25, "x": 0}}
-    layout.update(extra)
-    return layout
-
-
-def _axis(title: str, **extra) -> dict[str, Any]:
-    axis = {"title": {"text": title}, "gridcolor": GRID, "zerolinecolor": "#c9ccd0",
-            "linecolor": "#9aa0a6", "showline": True, "mirror": True}
-    axis.update(extra)
-    return axis
-
-
-def fan_system_figure(curves: dict[str, Any]):
-    """Fan-array curve(s) against the system curve, with the operating point and the stall
-    region shaded; flows drawn in m³/h."""
-    h = 3600.0
-    traces: list[dict[str, Any]] = []
-    p_top = 0.0
-    sysc = curves.get("system_curve") or {"flow_m3_s": [], "pressure_Pa": []}
-    stall = curves.get("stall_limit_m3_s")
-    rated = curves.get("fan_curve_rated")
-    if rated and rated["flow_m3_s"]:
-        traces.append(_scatter(
-            x=[q * h for q in rated["flow_m3_s"]], y=rated["pressure_Pa"], mode="lines",
-            name="fans at top of speed range", line={"color": "#9aa0a6", "dash": "dot",
-                                                     "width": 1.5},
-            hovertemplate="%{x:.4g} m³/h, %{y:.4g} Pa<extra>top speed</extra>"))
-        p_top = max(p_top, max(rated["pressure_Pa"]))
-    fan = curves.get("fan_curve")
-    if fan and fan["flow_m3_s"]:
-        q = [x * h for x in fan["flow_m3_s"]]
-        p = fan["pressure_Pa"]
-        p_top = max(p_top, max(p))
-        label = _t(curves.get("fan") or "fan")
-        speed = curves.get("speed_ratio")
-        name = f"{label} at {speed * 100:.0f} % speed" if speed else label
-        if stall:
-            qs = stall * h
-            unstable = [i for i, x in enumerate(q) if x <= qs * (1 + 1e-9)]
-            stable = [i for i, x in enumerate(q) if x >= qs * (1 - 1e-9)]
-            if len(unstable) > 1:
-                traces.append(_scatter(
-                    x=[q[i] for i in unstable], y=[p[i] for i in unstable], mode="lines",
-                    name="fans, stall region", line={"color": ACCENT, "dash": "dash", "width": 2},
-                    hovertemplate="%{x:.4g} m³/h, %{y:.4g} Pa<extra>stall region</extra>"))
-        else:
-            stable = list(range(len(q)))
-        traces.append(_scatter(
-            x=[q[i] for i in stable], y=[p[i] for i in stable], mode="lines", name=name,
-            line={"color": ACCENT, "width": 2.5},
-            hovertemplate="%{x:.4g} m³/h, %{y:.4g} Pa<extra>fans</extra>"))
-    if sysc["flow_m3_s"]:
-        traces.append(_scatter(
-            x=[q * h for q in sysc["flow_m3_s"]], y=sysc["pressure_Pa"], mode="lines",
-            name="system (sink and extra losses)", line={"color": INK, "width": 2},
-            hovertemplate="%{x:.4g} m³/h, %{y:.4g} Pa<extra>system</extra>"))
-    op = curves.get("operating_point")
-    if op:
-        traces.append(_scatter(
-            x=[op["flow_m3_s"] * h], y=[op["pressure_Pa"]], mode="markers",
-            name="operating point", marker={"size": 11, "color": WARM,
-                                            "line": {"color": INK, "width": 1.5}},
-            hovertemplate="operating point<br>%{x:.4g} m³/h, %{y:.4g} Pa<extra></extra>"))
-        p_top = max(p_top, op["pressure_Pa"] * 1.2)
-    if not p_top > 0:
-        p_top = max(sysc["pressure_Pa"] or [1.0])
-    shapes, notes = [], []
-    if stall:
-        shapes.append({"type": "rect", "xref": "x", "yref": "paper", "x0": 0, "x1": stall * h,
-                       "y0": 0, "y1": 1, "fillcolor": "rgba(181,101,43,0.12)", "line": {"width": 0},
-                       "layer": "below"})
-        notes.append({"x": stall * h / 2, "y": 1, "xref": "x", "yref": "paper",
-                      "yanchor": "top", "text": "stall region at this speed", "showarrow": False,
-                      "font": {"color": WARM, "size": 11}})
-    return {"data": traces, "layout": _base_layout(
-        height=340, shapes=shapes, annotations=notes,
-        xaxis=_axis("airflow [m³/h]", rangemode="tozero"),
-        yaxis=_axis("static pressure [Pa]", range=[0, p_top * 1.08]))}
-
-
-def breakdown_figure(devices: Sequence[dict[str, Any]], ambient_C: float | None = None):
-    """Stacked temperature rises from the inlet air to each junction, one bar per device, with
-    each device's allowed rise (Tj,max − inlet air) marked."""
-    names = [_t(d["name"]) for d in devices]
-    traces: list[dict[str, Any]] = []
-    for (key, label), colour in zip(BREAKDOWN_LABELS.items(), BREAKDOWN_COLOURS):
-        traces.append(_bar(
-            x=names, y=[(d.get("breakdown_K") or {}).get(key) for d in devices], name=label,
-            marker={"color": colour},
-            hovertemplate="%{x}: %{y:.3g} K<extra>" + _t(label) + "</extra>"))
-    if ambient_C is not None:
-        traces.append(_scatter(
-            x=names, y=[d["tj_max_C"] - ambient_C for d in devices], mode="markers",
-            name="allowed rise (Tj,max − inlet air)",
-            marker={"symbol": "line-ew-open", "size": 34, "color": WARM,
-                    "line": {"width": 2.5, "color": WARM}},
-            hovertemplate="%{x}: allowed %{y:.3g} K<extra></extra>"))
-    return {"data": traces, "layout": _base_layout(
-        height=340, barmode="stack", bargap=0.45,
-        xaxis=_axis("device", type="category"),
-        yaxis=_axis("temperature rise above inlet air [K]", rangemode="tozero"))}
-
-
-def parcoords_figure(pc: dict[str, Any]):
-    """Parallel coordinates of every trial, coloured infeasible / dominated / Pareto."""
-    dims = []
-    for d in pc["dimensions"]:
-        label = d["label"] + (f" [{d['unit']}]" if d.get("unit") and d["unit"] != "-" else "")
-        dim = {"label": _t(label), "values": d["values"]}
-        if "tickvals" in d:
-            dim["tickvals"] = d["tickvals"]
-            dim["ticktext"] = [_t(x) for x in d["ticktext"]]
-        dims.append(dim)
-    line = {"color": pc["status"], "cmin": 0, "cmax": 2, "showscale": False,
-            "colorscale": [[0, "#d5d8dc"], [0.5, "#9fb3c2"], [1, WARM]]}
-    trace = {"type": "parcoords", "line": line, "dimensions": dims, "labelangle": -20,
-             "labelside": "bottom", "labelfont": {"size": 11}, "tickfont": {"size": 10},
-             "rangefont": {"size": 9}}
-    return {"data": [trace], "layout": {"font": FONT, "paper_bgcolor": "rgba(0,0,0,0)",
-                                        "height": 460,
-                                        "margin": {"l": 150, "r": 60, "t": 40, "b": 90}}}
-
-
-def report_figures(data: dict[str, Any]) -> dict[str, Any]:
-    """The figures built in Python, as plotly JSON: the parallel coordinates and, per Pareto
-    design, the fan/system curves and the temperature breakdown."""
-    figs: dict[str, Any] = {"parcoords": None, "designs": {}}
-    if data["parcoords"]["trial"]:
-        figs["parcoords"] = _round(parcoords_figure(data["parcoords"]), 5)
-    for key, d in data["designs"].items():
-        figs["designs"][key] = {
-            "fan_system": _round(fan_system_figure(d["curves"]), 5),
-            "breakdown": _round(breakdown_figure(d["devices"], d.get("ambient_C")), 5),
-        }
-    return figs
 
 
 # ---------------------------------------------------------------- static HTML (escaped)
@@ -283,29 +145,6 @@ def _kv(rows: Sequence[Sequence[Any]]) -> str:
     body = "".join(f"<tr><th scope=\"row\">{e(str(k))}</th><td>{e(_fmt(v))}</td></tr>"
                    for k, v in rows)
     return f'<table class="kv"><tbody>{body}</tbody></table>'
-
-
-def _pareto_table(table: dict[str, Any]) -> str:
-    e = html.escape
-    cols = table["columns"]
-    head = []
-    for c in cols:
-        unit = f" [{c['unit']}]" if c["unit"] and c["unit"] != "-" else ""
-        head.append(f'<th scope="col" data-kind="{e(c["kind"])}" aria-sort="none">'
-                    f'<button type="button">{e(c["label"] + unit)}</button></th>')
-    rows = []
-    for r in table["rows"]:
-        cells = []
-        for c in cols:
-            v = r.get(c["key"])
-            sort = "" if v is None else (str(v) if c["kind"] == "text" else repr(float(v)))
-            cells.append(f'<td data-v="{e(sort)}">{e(_fmt(v))}</td>')
-        rows.append(f'<tr data-trial="{int(r["trial"])}" tabindex="0">{"".join(cells)}</tr>')
-    if not rows:
-        return "<p>No feasible design was found, so the front is empty; trials.csv lists the " \
-               "closest designs.</p>"
-    return (f'<table id="pareto-table" class="sortable"><thead><tr>{"".join(head)}</tr></thead>'
-            f'<tbody>{"".join(rows)}</tbody></table>')
 
 
 def _inputs_html(inp: dict[str, Any]) -> str:
@@ -392,20 +231,29 @@ def _asset(name: str) -> str:
     return resources.files("sinkopt.results").joinpath("report_assets", name).read_text(encoding="utf-8")
 
 
-def _plotly_js() -> str:
+@functools.lru_cache(maxsize=1)
+def plotly_payload() -> tuple[str, str]:
+    """plotly.js (the bundle of the installed plotly package) as the page embeds it: its
+    licence header (kept readable) and the whole bundle gzip-compressed, base64-encoded.
+
+    The base64 alphabet holds no ``<``, ``&`` or ``:``, so the text can neither end its
+    ``<script>`` block nor name a URL. Computed once per process (~0.3 s).
+    """
     from plotly.offline import get_plotlyjs
 
     js = get_plotlyjs()
-    # Never let the bundle end the <script> element early.
-    return js.replace("</script", "<\\/script").replace("<!--", "<\\!--")
+    m = re.match(r"\s*/\*\*?(.*?)\*/", js, flags=re.S)
+    header = " ".join(ln.strip(" *") for ln in (m.group(1) if m else "plotly.js").splitlines())
+    header = " ".join(header.split())
+    packed = gzip.compress(js.encode("utf-8"), compresslevel=9, mtime=0)
+    return header, base64.b64encode(packed).decode("ascii")
 
 
 def render_report(results: Results, info: dict[str, Any] | None = None) -> str:
     """The report page as one HTML string."""
     from sinkopt.results.report_data import report_data
 
-    data = _round(report_data(results, info))
-    figures = report_figures(data)
+    data = _compact(report_data(results, info))
     inp = data["inputs"]
     s = data["summary"]
     e = html.escape
@@ -417,6 +265,7 @@ def render_report(results: Results, info: dict[str, Any] | None = None) -> str:
         summary += (f" Not plotted: {n} {'trial' if n == 1 else 'trials'} with no fan operating "
                     "point or no valid geometry.")
     generated = _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds")
+    plotly_header, plotly_packed = plotly_payload()
     page = _asset("page.html")
     fill = {
         "CSP": e(CSP),
@@ -426,14 +275,14 @@ def render_report(results: Results, info: dict[str, Any] | None = None) -> str:
         "GENERATED": e(generated),
         "SEED": e(_fmt(inp["run"]["seed"])),
         "VERSION": e(_fmt(inp["run"]["sinkopt"])),
-        "PARETO_TABLE": _pareto_table(data["table"]),
         "INPUTS": _inputs_html(inp),
         "RUN": _run_html(inp),
         "SAFETY": SAFETY_HTML,
         "CSS": _asset("report.css"),
         "DATA_JSON": json_for_script(data),
-        "FIGURES_JSON": json_for_script(figures),
-        "PLOTLY_JS": _plotly_js(),
+        # an HTML comment: no "--" inside
+        "PLOTLY_LICENSE": e(plotly_header).replace("--", "- -"),
+        "PLOTLY_GZ_BASE64": plotly_packed,
         "REPORT_JS": _asset("report.js"),
     }
     out = []

@@ -1,16 +1,24 @@
 """Data of the HTML report: plain, JSON-ready dicts and lists built from a study's results.
 
-Nothing here draws or imports plotly; :mod:`sinkopt.results.report` turns these into figures and the page.
-Quantities stay in SI (flows in m^3/s) unless the key names another unit (``_mm``, ``_cm3``);
-values that do not exist (no operating point, a geometry that cannot exist) are ``None``.
+Nothing here draws or imports plotly; :mod:`sinkopt.results.report` embeds :func:`report_data` in
+the page, whose script draws the figures. Quantities stay in SI (flows in m^3/s) unless the key
+names another unit (``_mm``, ``_cm3``); values that do not exist (no operating point, a geometry
+that cannot exist) are ``None``.
 
 Sources of the numbers: the Pareto designs and every design the results reviewed with the exact
 spreading series carry the exact values (as in ``pareto.csv``); the other trials carry the search
 model's values (as in ``trials.csv``).
+
+The page's data holds each number once: every trial's values in ``pareto.points`` (columns, one
+entry per trial; the Pareto table, the plots and the design panel read them there), per Pareto
+design only what the points lack (device temperatures, warnings, system curve, command), each fan
+array's curve once at its rated speed (other speeds follow by the fan laws), and the drawings are
+made by the page from the geometry (:func:`sink_drawing` is the reference it follows).
 """
 from __future__ import annotations
 
 import math
+import os
 from pathlib import Path
 from typing import Any, Sequence
 
@@ -29,12 +37,17 @@ __all__ = [
     "objective_axes",
     "trial_points",
     "pareto_plot_data",
+    "table_columns",
     "pareto_table_data",
     "parcoords_data",
+    "fan_curves",
+    "system_curves",
     "fan_system_curves",
     "drawing_scale",
     "sink_drawing",
-    "design_panel_data",
+    "design_data",
+    "DESIGN_KEYS",
+    "DEVICE_COLUMNS",
     "study_inputs_data",
     "report_data",
 ]
@@ -198,11 +211,8 @@ def pareto_plot_data(results: Results) -> dict[str, Any]:
     }
 
 
-def pareto_table_data(results: Results, records: Sequence[dict[str, Any]] | None = None
-                      ) -> dict[str, Any]:
-    """The Pareto designs as table columns and rows (exact series, as in ``pareto.csv``)."""
-    records = results.pareto_records() if records is None else records
-    problem = results.problem
+def table_columns(problem: Problem, records: Sequence[dict[str, Any]]) -> list[dict[str, Any]]:
+    """Columns of the Pareto table: key, label, unit and kind (``int``, ``number``, ``text``)."""
     columns = [{"key": "trial", "label": "trial", "unit": "", "kind": "int"}]
     if any("fan" in r["params"] for r in records):
         columns.append({"key": "fan", "label": "fan", "unit": "", "kind": "text"})
@@ -224,6 +234,17 @@ def pareto_table_data(results: Results, records: Sequence[dict[str, Any]] | None
             label, unit = RESULT_LABELS[column]
             columns.append({"key": column, "label": label, "unit": unit, "kind": "number"})
     columns.append({"key": "n_warnings", "label": "warnings", "unit": "", "kind": "int"})
+    return columns
+
+
+def pareto_table_data(results: Results, records: Sequence[dict[str, Any]] | None = None
+                      ) -> dict[str, Any]:
+    """The Pareto designs as table columns and rows (exact series, as in ``pareto.csv``).
+
+    The page builds the same rows from its points and design data (each number once); this is
+    the table as plain rows, for scripts and tests."""
+    records = results.pareto_records() if records is None else records
+    columns = table_columns(results.problem, records)
     rows = []
     for r in records:
         row = {"trial": r["trial"], "fan": r.get("fan") or r["params"].get("fan")}
@@ -241,7 +262,8 @@ def parcoords_data(results: Results, points: dict[str, Any] | None = None) -> di
     """Dimensions of a parallel-coordinates view of every trial that has objective values.
 
     Categorical variables become integer codes with ``tickvals``/``ticktext``; ``status`` codes
-    are 0 infeasible, 1 feasible dominated, 2 Pareto.
+    are 0 infeasible, 1 feasible dominated, 2 Pareto. Each dimension's ``from`` names the group
+    of ``points`` its values come from (``categorical``, ``numeric`` or ``objectives``).
     """
     points = trial_points(results) if points is None else points
     n = len(points["trial"])
@@ -254,7 +276,8 @@ def parcoords_data(results: Results, points: dict[str, Any] | None = None) -> di
             continue
         code = {lab: k for k, lab in enumerate(labels)}
         label, _ = _label(name)
-        dims.append({"key": name, "label": label, "values": [code[values[i]] for i in keep],
+        dims.append({"key": name, "from": "categorical", "label": label,
+                     "values": [code[values[i]] for i in keep],
                      "tickvals": list(range(len(labels))), "ticktext": labels})
     for name, values in points["numeric"].items():
         if name not in _variable_names(results.problem):
@@ -263,9 +286,11 @@ def parcoords_data(results: Results, points: dict[str, Any] | None = None) -> di
         if len(set(kept)) < 2:
             continue
         label, unit = _label(name)
-        dims.append({"key": name, "label": label, "unit": unit, "values": kept})
+        dims.append({"key": name, "from": "numeric", "label": label, "unit": unit,
+                     "values": kept})
     for o in objective_axes(results.problem):
-        dims.append({"key": o["name"], "label": o["label"], "unit": o["unit"],
+        dims.append({"key": o["name"], "from": "objectives", "label": o["label"],
+                     "unit": o["unit"],
                      "values": [points["objectives"][o["name"]][i] for i in keep]})
     return {"trial": [points["trial"][i] for i in keep],
             "status": [_STATUS.index(points["status"][i]) for i in keep],
@@ -276,13 +301,14 @@ def _variable_names(problem: Problem) -> set[str]:
     return {v.name for v in problem.variables}
 
 
-def _geometry(params: dict[str, Any]) -> SinkGeometry:
-    values = {name: float(params[name]) * factor
+def _geometries(params_list: Sequence[dict[str, Any]]) -> SinkGeometry:
+    """The designs' sinks as one geometry batch (SI)."""
+    values = {name: np.array([float(p[name]) for p in params_list], dtype=float) * factor
               for name, (_, factor) in GEOMETRY_VARIABLES.items()}
     return SinkGeometry.of(width=values["width_mm"], length=values["length_mm"],
                            fin_height=values["fin_height_mm"],
                            fin_thickness=values["fin_thickness_mm"],
-                           n_fins=round(values["n_fins"]),
+                           n_fins=np.round(values["n_fins"]),
                            base_thickness=values["base_thickness_mm"])
 
 
@@ -293,10 +319,109 @@ def _finite_xy(q, p) -> dict[str, list[float]]:
     return {"flow_m3_s": q[ok].tolist(), "pressure_Pa": p[ok].tolist()}
 
 
+def _fan_curve(option, count: int, rho: float, n_points: int) -> dict[str, Any]:
+    arr = FanArray(option.curve, count=count, arrangement=option.arrangement)
+    st = arr.sample(n_points, 1.0, rho)
+    stall = None
+    if option.curve.has_stall_region:
+        stall = _num(arr.evaluate(option.curve.q_stall_limit_m3_s, 1.0, rho).flow_m3_s)
+    return {"name": option.curve.name, "count": count, "arrangement": option.arrangement,
+            "speed_min": option.speed_min, "speed_max": option.speed_max,
+            "stall_limit_m3_s": stall, **_finite_xy(st.flow_m3_s, st.pressure_Pa)}
+
+
+def fan_curves(problem: Problem, n_points: int = 80,
+               air_density_kg_m3: float | None = None) -> dict[str, dict[str, Any]]:
+    """Every fan array the study can choose, sampled once at rated speed and the site air density.
+
+    The curve at speed ratio ``s`` follows by the fan laws, point by point: flow × s, pressure
+    × s² (the very points :meth:`sinkopt.fans.FanArray.sample` gives at ``s``); so does the
+    stall limit (× s). The report's page draws each design's fan curve so.
+
+    Parameters
+    ----------
+    problem : Problem
+    n_points : int
+        Grid points of each curve (the fan file's own points are added).
+    air_density_kg_m3 : float, optional
+        Default: the site's inlet air.
+
+    Returns
+    -------
+    dict
+        Fan label -> ``name``, ``count``, ``arrangement``, ``speed_min`` and ``speed_max``
+        [-], ``flow_m3_s`` and ``pressure_Pa`` lists at speed ratio 1, ``stall_limit_m3_s``:
+        the array's flow at the stall limit at speed ratio 1 (None without a stall region).
+        Empty for a study without fans.
+    """
+    if not problem.air.uses_fans:
+        return {}
+    rho = (float(inlet_air(problem.conditions).density) if air_density_kg_m3 is None
+           else float(air_density_kg_m3))
+    return {label: _fan_curve(option, count, rho, n_points)
+            for label, (option, count) in fan_choices(problem).items()}
+
+
+def system_curves(problem: Problem, params_list: Sequence[dict[str, Any]], flows
+                  ) -> np.ndarray:
+    """System static pressure drop [Pa] of each design (sink and the study's extra losses, at
+    the site air) at its own flows, in one vectorised call.
+
+    Parameters
+    ----------
+    problem : Problem
+    params_list : sequence of dict
+        The designs' parameters (fixed variables may be left out).
+    flows : array_like, shape (m, n)
+        Total flows [m³/s], one row per design.
+
+    Returns
+    -------
+    ndarray, shape (m, n)
+        NaN where the model has no value.
+    """
+    q = np.asarray(flows, dtype=float)
+    m, n = q.shape
+    if m == 0:
+        return np.zeros((0, n))
+    params_list = [full_params(problem, p) for p in params_list]
+    g = _geometries(params_list).take(np.repeat(np.arange(m), n))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        dp, _ = system_pressure_drop(problem, g, q.ravel(), inlet_air(problem.conditions),
+                                     problem.options)
+    return np.asarray(dp, dtype=float).reshape(m, n)
+
+
+def _speed_and_extent(problem: Problem, params: dict[str, Any], speed_ratio: float | None,
+                      q_op: float | None, fans: dict[str, dict[str, Any]]
+                      ) -> tuple[float | None, float]:
+    """A design's fan speed ratio (from its ``fan_speed`` setting when not known) and the flow
+    range its fan/system plot spans [m³/s]: the fans' free delivery at the design's and at the
+    top speed, and 1.25 × the operating flow."""
+    q_max = 0.0
+    fan = fans.get(params.get("fan")) if problem.air.uses_fans else None
+    if fan is not None:
+        if speed_ratio is None:
+            speed_ratio = fan["speed_min"] + float(params.get("fan_speed", 0.0)) * (
+                fan["speed_max"] - fan["speed_min"])
+        if fan["flow_m3_s"]:
+            q_max = max(fan["flow_m3_s"]) * max(speed_ratio, fan["speed_max"])
+    if q_op is not None:
+        q_max = max(q_max, 1.25 * q_op)
+    return speed_ratio, (q_max if q_max > 0 else 1e-3)
+
+
+def _at_speed(curve: dict[str, Any], s: float) -> dict[str, list[float]]:
+    return {"flow_m3_s": [q * s for q in curve["flow_m3_s"]],
+            "pressure_Pa": [p * s * s for p in curve["pressure_Pa"]]}
+
+
 def fan_system_curves(problem: Problem, params: dict[str, Any],
                       operating: dict[str, Any] | None = None,
                       n_points: int = 80) -> dict[str, Any]:
-    """Fan-array curve and system curve of one design at the site air density.
+    """Fan-array curve and system curve of one design at the site air density: what the
+    report's design panel draws (the page builds it from :func:`fan_curves` and
+    :func:`system_curves`).
 
     Parameters
     ----------
@@ -324,8 +449,7 @@ def fan_system_curves(problem: Problem, params: dict[str, Any],
         r = evaluate_params(problem, [params])
         operating = {"speed_ratio": _num(r.speed_ratio[0]), "airflow_m3_s": _num(r.flow_total[0]),
                      "pressure_drop_Pa": _num(r.system_pressure[0])}
-    air = inlet_air(problem.conditions)
-    rho = float(air.density)
+    rho = float(inlet_air(problem.conditions).density)
     q_op = _num(operating.get("airflow_m3_s"))
     dp_op = _num(operating.get("pressure_drop_Pa"))
     out: dict[str, Any] = {"fan": None, "count": None, "arrangement": None,
@@ -334,37 +458,22 @@ def fan_system_curves(problem: Problem, params: dict[str, Any],
                            "stall_limit_m3_s": None,
                            "operating_point": (None if q_op is None or dp_op is None
                                                else {"flow_m3_s": q_op, "pressure_Pa": dp_op})}
-    q_max = 0.0
+    fans: dict[str, dict[str, Any]] = {}
     if problem.air.uses_fans and params.get("fan") in fan_choices(problem):
         option, count = fan_choices(problem)[params["fan"]]
-        s = out["speed_ratio"]
-        if s is None:
-            s = option.speed_min + float(params.get("fan_speed", 0.0)) * (option.speed_max
-                                                                         - option.speed_min)
-            out["speed_ratio"] = s
-        arr = FanArray(option.curve, count=count, arrangement=option.arrangement)
-        st = arr.sample(n_points, s, rho)
-        out.update(fan=params["fan"], name=option.curve.name, count=count,
-                   arrangement=option.arrangement, fan_curve=_finite_xy(st.flow_m3_s,
-                                                                        st.pressure_Pa))
-        if out["fan_curve"]["flow_m3_s"]:
-            q_max = max(out["fan_curve"]["flow_m3_s"])
-        if abs(option.speed_max - s) > 1e-9:
-            rated = arr.sample(n_points, option.speed_max, rho)
-            out["fan_curve_rated"] = _finite_xy(rated.flow_m3_s, rated.pressure_Pa)
-            q_max = max([q_max, *out["fan_curve_rated"]["flow_m3_s"]])
-        if option.curve.has_stall_region:
-            limit = arr.evaluate(option.curve.q_stall_limit_m3_s * s, s, rho).flow_m3_s
-            out["stall_limit_m3_s"] = _num(limit)
-    if q_op is not None:
-        q_max = max(q_max, 1.25 * q_op)
-    if not q_max > 0:
-        q_max = 1e-3
+        fans[params["fan"]] = _fan_curve(option, count, rho, n_points)
+    s, q_max = _speed_and_extent(problem, params, out["speed_ratio"], q_op, fans)
+    out["speed_ratio"] = s
+    if fans:
+        fan = fans[params["fan"]]
+        out.update(fan=params["fan"], name=fan["name"], count=fan["count"],
+                   arrangement=fan["arrangement"], fan_curve=_at_speed(fan, s))
+        if abs(fan["speed_max"] - s) > 1e-9:
+            out["fan_curve_rated"] = _at_speed(fan, fan["speed_max"])
+        if fan["stall_limit_m3_s"] is not None:
+            out["stall_limit_m3_s"] = fan["stall_limit_m3_s"] * s
     q = np.union1d(np.linspace(0.0, q_max, n_points), [] if q_op is None else [q_op])
-    g = _geometry(params).take(np.zeros(q.size, dtype=int))
-    with np.errstate(invalid="ignore", divide="ignore"):
-        dp, _ = system_pressure_drop(problem, g, q, air, problem.options)
-    out["system_curve"] = _finite_xy(q, dp)
+    out["system_curve"] = _finite_xy(q, system_curves(problem, [params], q[None, :])[0])
     return out
 
 
@@ -464,43 +573,124 @@ def sink_drawing(params: dict[str, Any], devices: Sequence[dict[str, Any]] = (),
     return {"front": front_view, "plan": plan_view, "gap_mm": gap, "pitch_mm": pitch}
 
 
-def _device_layout(problem: Problem) -> list[dict[str, Any]]:
-    return [{"name": d.name, "center_x_mm": d.center_x * 1e3, "center_y_mm": d.center_y * 1e3,
-             "size_x_mm": d.size_x * 1e3, "size_y_mm": d.size_y * 1e3} for d in problem.devices]
+#: Key numbers of a Pareto design that the points lack (the page reads the others there).
+DESIGN_KEYS = ("air_outlet_C", "fin_aspect", "channel_velocity_m_s",
+               "heat_transfer_coefficient_W_m2K", "fin_efficiency")
+#: Per-device values of a Pareto design (``mounting``: index into the device's mountings in
+#: the study inputs, or the name when it is not one of them; then the junction, the margin and
+#: the temperature breakdown [K] from the inlet air to the junction).
+DEVICE_COLUMNS = ("mounting", "junction_C", "margin_K", "air_heating_upstream",
+                  "sink_and_spreading", "mounting_stack", "junction_to_case")
 
 
-_KEY_NUMBERS = ("volume_cm3", "mass_kg", "fan_power_W", "noise_dBA", "airflow_m3_s",
-                "airflow_fins_m3_s", "pressure_drop_Pa", "sink_pressure_drop_Pa",
-                "sink_resistance_K_per_W", "air_rise_K", "air_outlet_C", "worst_margin_K",
-                "speed_ratio", "fin_gap_mm", "fin_aspect", "channel_velocity_m_s", "reynolds_dh",
-                "heat_transfer_coefficient_W_m2K", "fin_efficiency", "air_density_kg_m3")
+def _common_prefix(texts: Sequence[str]) -> str:
+    """The longest common prefix of ``texts`` that ends at a space (or is empty)."""
+    if len(texts) < 2:
+        return ""
+    prefix = os.path.commonprefix(list(texts))
+    return prefix[:prefix.rfind(" ") + 1]
 
 
-def design_panel_data(problem: Problem, record: dict[str, Any], scale: float = 2.0
-                      ) -> dict[str, Any]:
-    """Everything the design panel shows about one design record
-    (:func:`sinkopt.results.design_record`): key numbers, drawings, fan and system curves,
-    per-device temperatures and breakdowns, warnings, the spreading check and the command."""
-    check = record.get("spreading_check") or {}
-    diffs = {k: _num(v) for k, v in (check.get("junction_difference_K") or {}).items()}
-    finite = [abs(v) for v in diffs.values() if v is not None]
+def design_data(problem: Problem, records: Sequence[dict[str, Any]],
+                fans: dict[str, dict[str, Any]] | None = None, scale: float | None = None,
+                n_system: int = 41) -> dict[str, Any]:
+    """What the report's design panel needs of each Pareto design beyond its entry in the
+    points (geometry, fan, objectives and results are there): device temperatures, warnings,
+    the spreading check, the command that reproduces it and its system curve.
+
+    Parameters
+    ----------
+    problem : Problem
+    records : sequence of dict
+        The Pareto designs' records (:meth:`sinkopt.results.collect.Results.pareto_records`).
+    fans : dict, optional
+        :func:`fan_curves` of the problem (computed when not given).
+    scale : float, optional
+        Drawing scale [px/mm]; default :func:`drawing_scale` of the records.
+    n_system : int
+        Points of each system curve, evenly spaced from 0 to ``system_q_max_m3_s``.
+
+    Returns
+    -------
+    dict
+        ``trials`` (table order), ``ambient_C``, ``air_density_kg_m3``,
+        ``drawing_scale_px_per_mm``, ``key_columns`` (:data:`DESIGN_KEYS`),
+        ``device_columns`` (:data:`DEVICE_COLUMNS`), ``spreading_models`` ([search model,
+        reported model] pairs), ``warnings`` (each distinct text once), ``command_prefix``
+        and ``by_trial``: trial (str) -> ``feasible``, ``speed_ratio``, ``key`` (values of
+        ``key_columns``), ``devices`` (a row of ``device_columns`` per device of the study, in
+        its order), ``warnings`` (indices), ``spreading`` ([model index, junction differences
+        exact − search model [K] per device] or None), ``command`` (after the prefix),
+        ``system_q_max_m3_s`` and ``system_Pa``.
+    """
+    rho = float(inlet_air(problem.conditions).density)
+    fans = fan_curves(problem, air_density_kg_m3=rho) if fans is None else fans
+    params_list = [full_params(problem, r["params"]) for r in records]
+    speeds, extents = [], []
+    for r, p in zip(records, params_list):
+        s, q_max = _speed_and_extent(problem, p, _num(r.get("speed_ratio")),
+                                     _num(r.get("airflow_m3_s")), fans)
+        speeds.append(s)
+        extents.append(q_max)
+    grid = np.linspace(0.0, 1.0, n_system)
+    system = system_curves(problem, params_list, np.outer(extents, grid))
+    commands = [str(r.get("evaluate_command") or "") for r in records]
+    prefix = _common_prefix(commands)
+    mountings = {d.name: [st.name for st in d.stacks] for d in problem.devices}
+    warnings: list[str] = []
+    warning_index: dict[str, int] = {}
+    models: list[list[Any]] = []
+    by_trial = {}
+    for k, r in enumerate(records):
+        devices = {d.get("name"): d for d in r.get("devices", [])}
+        rows = []
+        for dev in problem.devices:
+            d = devices.get(dev.name)
+            if d is None:
+                rows.append(None)
+                continue
+            mount = d.get("mounting")
+            b = d.get("breakdown_K") or {}
+            rows.append([mountings[dev.name].index(mount) if mount in mountings[dev.name]
+                         else mount, _num(d.get("junction_C")), _num(d.get("margin_K")),
+                         *(_num(b.get(c)) for c in DEVICE_COLUMNS[3:])])
+        idx = []
+        for w in r.get("warnings", []):
+            w = str(w)
+            if w not in warning_index:
+                warning_index[w] = len(warnings)
+                warnings.append(w)
+            idx.append(warning_index[w])
+        check = r.get("spreading_check") or None
+        spreading = None
+        if check:
+            pair = [check.get("search_model"), r.get("spreading")]
+            if pair not in models:
+                models.append(pair)
+            diffs = check.get("junction_difference_K") or {}
+            spreading = [models.index(pair), [_num(diffs.get(d.name)) for d in problem.devices]]
+        by_trial[str(r["trial"])] = {
+            "feasible": bool(r.get("feasible")),
+            "speed_ratio": _num(speeds[k]),
+            "key": [_num(r.get(c)) for c in DESIGN_KEYS],
+            "devices": rows,
+            "warnings": idx,
+            "spreading": spreading,
+            "command": commands[k][len(prefix):],
+            "system_q_max_m3_s": extents[k],
+            "system_Pa": [_num(v) for v in system[k]],
+        }
     return {
-        "trial": record.get("trial"),
-        "fan": record.get("fan"),
-        "feasible": bool(record.get("feasible")),
-        "params": record["params"],
-        "key": {k: _num(record.get(k)) for k in _KEY_NUMBERS},
-        "ambient_C": record.get("ambient_C"),
-        "objectives": record.get("objectives", {}),
-        "devices": record.get("devices", []),
-        "warnings": list(record.get("warnings", [])),
-        "spreading_check": {"search_model": check.get("search_model"),
-                            "reported_model": record.get("spreading"),
-                            "junction_difference_K": diffs,
-                            "max_abs_K": max(finite) if finite else None} if check else None,
-        "evaluate_command": record.get("evaluate_command", ""),
-        "drawing": sink_drawing(record["params"], _device_layout(problem), scale),
-        "curves": fan_system_curves(problem, record["params"], record),
+        "trials": [int(r["trial"]) for r in records],
+        "ambient_C": problem.conditions.ambient_C,
+        "air_density_kg_m3": rho,
+        "drawing_scale_px_per_mm": drawing_scale(records) if scale is None else scale,
+        "key_columns": list(DESIGN_KEYS),
+        "device_columns": list(DEVICE_COLUMNS),
+        "spreading_models": models,
+        "warnings": warnings,
+        "command_prefix": prefix,
+        "by_trial": by_trial,
     }
 
 
@@ -607,20 +797,29 @@ def study_inputs_data(problem: Problem, info: dict[str, Any] | None) -> dict[str
 
 
 def report_data(results: Results, info: dict[str, Any] | None = None) -> dict[str, Any]:
-    """All of the report's data (the page embeds it as JSON, figures aside)."""
+    """All of the report's data, as the page embeds it (each number once; see the module's
+    notes): ``pareto`` (:func:`pareto_plot_data`: every trial's values), ``table`` (the Pareto
+    table's ``columns``: its rows are the Pareto designs' points), ``parcoords`` (the
+    ``dimensions`` of :func:`parcoords_data` without their values), ``fans``
+    (:func:`fan_curves`), ``designs`` (:func:`design_data`), ``inputs``
+    (:func:`study_inputs_data`)."""
+    problem = results.problem
     records = results.pareto_records()
-    scale = drawing_scale(records)
     pareto = pareto_plot_data(results)
+    fans = fan_curves(problem)
+    parcoords = parcoords_data(results, pareto["points"])
     return {
-        "schema_version": 1,
-        "study": results.problem.name,
+        "schema_version": 2,
+        "study": problem.name,
         "summary": {"trials": len(results.trial_numbers), "states": dict(results.states),
                     "pareto": len(records), **pareto["counts"],
                     "not_plotted": pareto["not_plotted"]},
         "pareto": pareto,
-        "table": pareto_table_data(results, records),
-        "parcoords": parcoords_data(results, pareto["points"]),
-        "designs": {str(r["trial"]): design_panel_data(results.problem, r, scale)
-                    for r in records},
-        "inputs": study_inputs_data(results.problem, info),
+        "table": {"columns": table_columns(problem, records)},
+        "parcoords": {"dimensions": [{k: v for k, v in d.items() if k not in ("values",
+                                                                               "tickvals")}
+                                     for d in parcoords["dimensions"]]},
+        "fans": fans,
+        "designs": design_data(problem, records, fans),
+        "inputs": study_inputs_data(problem, info),
     }

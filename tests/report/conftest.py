@@ -63,3 +63,30 @@ def hostile_dir(tmp_path_factory):
     out = base / "out"
     _run([str(path), "--out", str(out), "--trials", "30", "--seed", "1", "--sampler", "random"])
     return out
+
+
+@pytest.fixture(scope="session")
+def demo300_dir(tmp_path_factory):
+    """The demo study as its users first run it: 300 trials of the default sampler, seed 1
+    (~10 s); results folder with report.html."""
+    out = tmp_path_factory.mktemp("report_demo300")
+    _run([str(DEMO), "--out", str(out), "--seed", "1"])
+    return out
+
+
+@pytest.fixture(scope="session")
+def given_flow_dir(tmp_path_factory):
+    """The demo study with a given airflow instead of fans (no fan curves, no fan power), 20
+    trials: results folder with report.html."""
+    base = tmp_path_factory.mktemp("report_given_flow")
+    text = DEMO.read_text(encoding="utf-8")
+    text = (text[:text.index("[air]")] + "[air]\nducted = true\nflow_m3_per_h = 60\n\n"
+            + text[text.index("[objectives]"):])
+    old = 'use = ["sink_volume", "fan_power", "junction_margin"]'
+    assert old in text
+    text = text.replace(old, 'use = ["sink_volume", "junction_margin"]')
+    path = base / "given_flow.toml"
+    path.write_text(text, encoding="utf-8")
+    out = base / "out"
+    _run([str(path), "--out", str(out), "--trials", "20", "--seed", "1", "--sampler", "random"])
+    return out

@@ -6,9 +6,10 @@ import pytest
 from sinkopt.fans import FanArray
 from sinkopt.model.known_flow import inlet_air
 from sinkopt.model.problem import OBJECTIVES
-from sinkopt.results.report_data import (design_panel_data, drawing_scale, fan_system_curves,
-                                 pareto_plot_data, pareto_table_data, parcoords_data, report_data,
-                                 sink_drawing)
+from sinkopt.results.report_data import (DEVICE_COLUMNS, design_data, drawing_scale, fan_curves,
+                                         fan_system_curves, pareto_plot_data, pareto_table_data,
+                                         parcoords_data, report_data, sink_drawing,
+                                         system_curves)
 from sinkopt.model.system import evaluate_params, fan_choices
 
 
@@ -175,18 +176,82 @@ def test_drawing_scale_fits_the_largest_design():
     assert drawing_scale([], target_px=320) > 0
 
 
-def test_design_panel_data(demo_results, record):
-    d = design_panel_data(demo_results.problem, record, scale=2.0)
-    assert d["trial"] == record["trial"]
-    assert d["key"]["volume_cm3"] == record["volume_cm3"]
-    assert [x["name"] for x in d["devices"]] == [x.name for x in demo_results.problem.devices]
-    assert d["evaluate_command"].startswith("sinkopt evaluate ")
-    sc = d["spreading_check"]
-    assert sc["max_abs_K"] == pytest.approx(max(
-        abs(v) for v in record["spreading_check"]["junction_difference_K"].values()))
-    for dev in d["devices"]:  # the breakdown adds up to the junction temperature
-        assert record["ambient_C"] + sum(dev["breakdown_K"].values()) == pytest.approx(
-            dev["junction_C"], abs=1e-6)
+def test_design_data_holds_what_the_points_lack(demo_results):
+    problem = demo_results.problem
+    records = demo_results.pareto_records()
+    d = design_data(problem, records)
+    assert d["trials"] == [r["trial"] for r in records]
+    assert d["drawing_scale_px_per_mm"] == pytest.approx(drawing_scale(records))
+    names = [x.name for x in problem.devices]
+    for r in records:
+        row = d["by_trial"][str(r["trial"])]
+        assert d["command_prefix"] + row["command"] == r["evaluate_command"]
+        assert [d["warnings"][k] for k in row["warnings"]] == list(r["warnings"])
+        assert row["speed_ratio"] == pytest.approx(r["speed_ratio"], rel=1e-12)
+        assert row["key"] == [pytest.approx(r[k], rel=1e-12) for k in d["key_columns"]]
+        assert len(row["devices"]) == len(names)
+        for dev, values in zip(r["devices"], row["devices"]):
+            got = dict(zip(DEVICE_COLUMNS, values))
+            mountings = [s.name for s in problem.devices[names.index(dev["name"])].stacks]
+            assert mountings[got["mounting"]] == dev["mounting"]
+            assert got["junction_C"] == pytest.approx(dev["junction_C"], rel=1e-12)
+            assert got["margin_K"] == pytest.approx(dev["margin_K"], rel=1e-12)
+            for k, v in dev["breakdown_K"].items():
+                assert got[k] == pytest.approx(v, rel=1e-12)
+            # the breakdown adds up to the junction temperature
+            assert d["ambient_C"] + sum(values[3:]) == pytest.approx(got["junction_C"], abs=1e-6)
+        model, diffs = row["spreading"]
+        assert d["spreading_models"][model] == [r["spreading_check"]["search_model"],
+                                                r["spreading"]]
+        assert diffs == [pytest.approx(r["spreading_check"]["junction_difference_K"][n])
+                         for n in names]
+
+
+def test_design_system_curves_pass_through_the_operating_points(demo_results):
+    records = demo_results.pareto_records()
+    d = design_data(demo_results.problem, records)
+    for r in records:
+        row = d["by_trial"][str(r["trial"])]
+        q = np.linspace(0, row["system_q_max_m3_s"], len(row["system_Pa"]))
+        assert q[-1] >= 1.25 * r["airflow_m3_s"] * (1 - 1e-12)
+        # 41 points on a smooth, convex curve: linear interpolation within 1 %
+        assert np.interp(r["airflow_m3_s"], q, row["system_Pa"]) == pytest.approx(
+            r["pressure_drop_Pa"], rel=1e-2)
+
+
+def test_system_curves_match_one_design_at_a_time(demo_results):
+    problem = demo_results.problem
+    records = demo_results.pareto_records()[:4]
+    flows = np.outer([r["airflow_m3_s"] for r in records], [0.5, 1.0, 1.5])
+    batch = system_curves(problem, [r["params"] for r in records], flows)
+    for k, r in enumerate(records):
+        one = system_curves(problem, [r["params"]], flows[k:k + 1])[0]
+        assert batch[k] == pytest.approx(one, rel=1e-12)
+        assert batch[k][1] == pytest.approx(r["pressure_drop_Pa"], rel=1e-6)
+
+
+def test_fan_curves_follow_the_fan_laws(demo_results):
+    """One curve per fan array at rated speed; at speed s the fan laws give FanArray.sample's
+    points: flow × s, pressure × s²."""
+    problem = demo_results.problem
+    rho = inlet_air(problem.conditions).density
+    curves = fan_curves(problem)
+    assert set(curves) == set(fan_choices(problem))
+    for label, (option, count) in fan_choices(problem).items():
+        c = curves[label]
+        assert (c["count"], c["arrangement"], c["speed_max"]) == (count, option.arrangement,
+                                                                  option.speed_max)
+        s = 0.7
+        st = FanArray(option.curve, count, option.arrangement).sample(80, s, rho)
+        ok = np.isfinite(st.pressure_Pa)
+        assert np.array(c["flow_m3_s"]) * s == pytest.approx(st.flow_m3_s[ok], rel=1e-12)
+        assert np.array(c["pressure_Pa"]) * s * s == pytest.approx(st.pressure_Pa[ok], rel=1e-9)
+        if option.curve.has_stall_region:
+            assert c["stall_limit_m3_s"] == pytest.approx(
+                option.curve.q_stall_limit_m3_s * (count if option.arrangement == "parallel"
+                                                   else 1), rel=1e-12)
+        else:
+            assert c["stall_limit_m3_s"] is None
 
 
 def test_parcoords_encodes_categories_as_integers(demo_results):
@@ -239,7 +304,7 @@ def test_report_data_is_json_ready(demo_results, demo_info):
 
     data = report_data(demo_results, demo_info)
     json.dumps(data, allow_nan=False)
-    assert set(data["designs"]) == {str(int(t)) for t in demo_results.pareto_trials}
+    assert set(data["designs"]["by_trial"]) == {str(int(t)) for t in demo_results.pareto_trials}
     assert data["inputs"]["run"]["seed"] == demo_info["seed"]
     assert data["inputs"]["inputs"]
 

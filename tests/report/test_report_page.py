@@ -1,16 +1,18 @@
-"""report.html as a file: self-contained, no network, user text escaped; the figures are valid
-plotly figures; ``sinkopt report`` rebuilds the page."""
+"""report.html as a file: self-contained, no network, user text escaped, plotly.js embedded once,
+each number stored once; ``sinkopt report`` rebuilds the page. (The figures, which the page's
+script builds, are checked against plotly's schema in test_report_browser.py.)"""
+import base64
+import gzip
 import html
 import json
 import re
 import shutil
 
+import pandas as pd
 import pytest
 
 from sinkopt.cli.main import main
-from sinkopt.results.report import (breakdown_figure, fan_system_figure, json_for_script,
-                            parcoords_figure, render_report)
-from sinkopt.results.report_data import report_data
+from sinkopt.results.report import json_for_script, plotly_payload, render_report
 
 from report_cases import (DEMO, HOSTILE_DEVICE, HOSTILE_FAN, HOSTILE_FAN_NAME,
                           HOSTILE_STUDY)
@@ -20,13 +22,19 @@ def _page(path):
     return path.read_text(encoding="utf-8")
 
 
+PLOTLY_SCRIPT = re.compile(r'<script type="application/octet-stream" id="plotly-js"[^>]*>'
+                           r'([^<]*)</script>')
+
+
 def _without_plotly_bundle(text):
-    """The page minus the inlined plotly.js (which names URLs in its own code and comments)."""
+    """The page minus the embedded plotly.js (gzip, base64): the installed plotly's bundle,
+    whole, embedded exactly once."""
     from plotly.offline import get_plotlyjs
 
-    bundle = get_plotlyjs().replace("</script", "<\\/script").replace("<!--", "<\\!--")
-    assert text.count(bundle) == 1, "plotly.js must be inlined exactly once"
-    return text.replace(bundle, "")
+    found = PLOTLY_SCRIPT.findall(text)
+    assert len(found) == 1, "plotly.js must be embedded exactly once"
+    assert gzip.decompress(base64.b64decode(found[0])).decode("utf-8") == get_plotlyjs()
+    return PLOTLY_SCRIPT.sub("", text)
 
 
 def _scripts(text):
@@ -58,16 +66,60 @@ def test_report_needs_no_network(demo_dir):
     assert "default-src 'none'" in policy and "connect-src 'none'" in policy
 
 
-def test_report_is_one_file_with_four_scripts(demo_dir):
-    scripts = _scripts(_page(demo_dir / "report.html"))
+def test_report_is_one_file_with_three_scripts(demo_dir):
+    text = _page(demo_dir / "report.html")
+    scripts = _scripts(text)
     kinds = [a.strip() for a, _ in scripts]
     assert kinds[:2] == ['type="application/json" id="sinkopt-data"',
-                         'type="application/json" id="sinkopt-figures"']
-    assert len(scripts) == 4
+                         'type="application/octet-stream" id="plotly-js" '
+                         'data-encoding="gzip, base64"']
+    assert len(scripts) == 3
     data = json.loads(scripts[0][1])
     assert data["study"] == "demo inverter"
-    figures = json.loads(scripts[1][1])
-    assert set(figures["designs"]) == set(data["designs"])
+    assert sorted(data["designs"]["by_trial"]) == sorted(str(t) for t in data["designs"]["trials"])
+    assert scripts[1][1] == plotly_payload()[1]
+    assert "plotly.js v" in text and "MIT license" in text  # its licence stays readable
+
+
+def test_page_data_holds_each_number_once(demo_dir):
+    """No figure, drawing or per-design fan curve is stored (the page builds them from the
+    points, the per-fan curves and the designs' own values); numbers have at most 6 significant
+    digits."""
+    text = _page(demo_dir / "report.html")
+    raw = _scripts(text)[0][1]
+    data = json.loads(raw)
+    for gone in ('"shapes"', '"drawing"', '"fan_curve"', '"layout"', '"hovertemplate"'):
+        assert gone not in raw, gone
+    assert '<table id="pareto-table"' not in text  # built from the data
+    for number in re.findall(r"(?<![\w.])-?\d+\.\d+(?:e[-+]?\d+)?", raw):
+        digits = number.lstrip("-").split("e")[0].replace(".", "").lstrip("0")
+        assert len(digits) <= 6, number
+    assert set(data["fans"]) >= set(data["pareto"]["points"]["categorical"]["fan"])
+    for d in data["designs"]["by_trial"].values():
+        assert not d["command"].startswith("sinkopt")  # the common prefix is stored once
+    assert data["designs"]["command_prefix"].startswith("sinkopt evaluate ")
+
+
+def test_pareto_rows_are_the_points_of_pareto_csv(demo_dir):
+    """The page's table and design panel read the Pareto designs' values from the points: they
+    are pareto.csv's, to the 6 significant digits the page keeps."""
+    data = json.loads(_scripts(_page(demo_dir / "report.html"))[0][1])
+    pareto = pd.read_csv(demo_dir / "pareto.csv").set_index("trial")
+    pts = data["pareto"]["points"]
+    index = {t: i for i, t in enumerate(pts["trial"])}
+    designs = data["designs"]
+    assert sorted(designs["trials"]) == sorted(pareto.index)
+    for c in data["table"]["columns"]:
+        key = c["key"]
+        if key in ("trial", "n_warnings"):
+            continue
+        for t in designs["trials"]:
+            if key == "fan":
+                assert pts["categorical"]["fan"][index[t]] == pareto.loc[t, "fan"]
+                continue
+            shown = (designs["by_trial"][str(t)]["speed_ratio"] if key == "speed_ratio"
+                     else pts["numeric"][key][index[t]])
+            assert shown == pytest.approx(pareto.loc[t, key], rel=5e-6), (t, key)
 
 
 def test_json_for_script_cannot_close_the_script_block():
@@ -85,19 +137,17 @@ def test_hostile_names_are_text_not_markup(hostile_dir):
     # the names are there, escaped: in the static tables...
     assert html.escape(HOSTILE_DEVICE, quote=False) in text
     assert html.escape(HOSTILE_STUDY, quote=False) in text
-    # ...and in the data, which the page's script parses back to the very names
+    # ...and in the data, which the page's script parses back to the very names (it escapes
+    # the text it hands to plotly: see test_report_browser.py)
     scripts = _scripts(text)
-    assert len(scripts) == 4  # nothing added a script element
+    assert len(scripts) == 3  # nothing added a script element
     data = json.loads(scripts[0][1])
     assert data["study"] == HOSTILE_STUDY
     assert HOSTILE_DEVICE in [d["name"] for d in data["inputs"]["devices"]]
     assert HOSTILE_FAN in data["pareto"]["points"]["categorical"]["fan"]
-    # text handed to plotly is escaped (plotly reads a few HTML-like tags)
-    figures = json.loads(scripts[1][1])
-    some = next(iter(figures["designs"].values()))
-    assert html.escape(HOSTILE_DEVICE, quote=False) in some["breakdown"]["data"][0]["x"]
-    js = _page(hostile_dir / "report.html").split('id="sinkopt-figures"')[1]
-    assert ".innerHTML" not in js.split("<script>", 2)[-1]  # the page's own script
+    assert HOSTILE_FAN_NAME in [f["name"] for f in data["fans"].values()]
+    js = text.split('id="sinkopt-data"')[1]
+    assert ".innerHTML" not in js.split("<script>", 1)[-1]  # the page's own script
 
 
 def test_page_script_never_uses_innerhtml():
@@ -105,31 +155,8 @@ def test_page_script_never_uses_innerhtml():
 
     js = resources.files("sinkopt.results").joinpath("report_assets", "report.js").read_text()
     assert "innerHTML" not in js and "insertAdjacentHTML" not in js and "document.write" not in js
-
-
-def test_figures_are_valid_plotly_figures(demo_results, demo_info):
-    import plotly.graph_objects as go
-
-    data = report_data(demo_results, demo_info)
-    d = next(iter(data["designs"].values()))
-    for fig in (fan_system_figure(d["curves"]), breakdown_figure(d["devices"], d["ambient_C"]),
-                parcoords_figure(data["parcoords"])):
-        go.Figure(fig)  # raises on any property plotly does not know
-
-
-def test_fan_system_figure_shades_the_stall_region():
-    curves = {"fan": "f", "speed_ratio": 1.0, "stall_limit_m3_s": 0.01,
-              "fan_curve": {"flow_m3_s": [0, 0.005, 0.01, 0.02], "pressure_Pa": [50, 40, 42, 0]},
-              "fan_curve_rated": None,
-              "system_curve": {"flow_m3_s": [0, 0.01, 0.02], "pressure_Pa": [0, 10, 40]},
-              "operating_point": {"flow_m3_s": 0.015, "pressure_Pa": 22.0}}
-    fig = fan_system_figure(curves)
-    (rect,) = fig["layout"]["shapes"]
-    assert (rect["x0"], rect["x1"]) == (0, pytest.approx(36.0))  # m³/h
-    names = [t["name"] for t in fig["data"]]
-    assert "operating point" in names and "fans, stall region" in names
-    op = [t for t in fig["data"] if t["name"] == "operating point"][0]
-    assert op["x"] == [pytest.approx(54.0)] and op["y"] == [22.0]
+    # the one eval runs the page's own embedded plotly.js
+    assert len(re.findall(r"\beval\b", js)) == 1 and "(0, eval)(code)" in js
 
 
 def test_report_command_rebuilds_the_page(demo_dir, tmp_path, capsys):

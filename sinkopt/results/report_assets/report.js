@@ -1,11 +1,17 @@
 /* sinkopt report page: Pareto plots, design panel, sortable table, parallel coordinates.
    Every text that comes from the study or fan files goes into the DOM with textContent, and
-   into plotly (which reads a few HTML-like tags) through esc(). */
+   into plotly (which reads a few HTML-like tags) through esc().
+
+   The data (report_data.py) holds each number once: every trial's values in D.pareto.points
+   (columns), per Pareto design only what the points lack (D.designs), each fan array's curve at
+   rated speed (D.fans; other speeds by the fan laws). This script builds the table, the figures
+   and the drawings from them. plotly.js is embedded gzip-compressed and base64-encoded
+   (#plotly-js): loadPlotly() unpacks and runs it. <body data-ready> marks the page ready (plotly
+   loaded, the 2-D front and the table drawn); data-ready-ms is the time it took. */
 (function () {
   'use strict';
 
   var D = JSON.parse(document.getElementById('sinkopt-data').textContent);
-  var F = JSON.parse(document.getElementById('sinkopt-figures').textContent);
   var CONFIG = {displaylogo: false, responsive: true, showSendToCloud: false,
                 showEditInChartStudio: false, modeBarButtonsToRemove: ['select2d', 'lasso2d']};
   var PALETTE = ['#2f5d7c', '#c0662b', '#4f8a4c', '#7b4f8c', '#b89b2e', '#3a9a9c', '#a23f3f',
@@ -13,10 +19,21 @@
   var SCALE = [[0, '#24425c'], [0.35, '#5f8aa6'], [0.7, '#c9c8a0'], [1, '#d9963f']];
   var FONT = {family: "system-ui, -apple-system, 'Segoe UI', Roboto, Helvetica, Arial, sans-serif",
               size: 12, color: '#1f2328'};
+  var INK = '#1f2328', GRID = '#e3e5e8', ACCENT = '#2f5d7c', WARM = '#b5652b';
+  var BREAKDOWN = [['air_heating_upstream', 'air heated by upstream devices', '#9fb3c2'],
+                   ['sink_and_spreading', 'sink and base spreading', '#2f5d7c'],
+                   ['mounting_stack', 'mounting stack (case to sink)', '#c7a15a'],
+                   ['junction_to_case', 'junction to case', '#7b4f6e']];
   var P = D.pareto.points;
   var OBJ = D.pareto.objectives;
+  var DS = D.designs;
+  var FANS = D.fans || {};
+  var INDEX = {};
+  P.trial.forEach(function (t, i) { INDEX[t] = i; });
   var state = {x: null, y: null, z: null, colour: null, infeasible: true, logx: false,
                logy: false, selected: null, ready3d: false};
+  var HAVE_PLOTLY = false;
+  var plotlyState = 'loading', plotlyReady = null;  // 'ready' or 'failed' once settled
 
   /* ---------- helpers ---------- */
   function esc(s) {
@@ -184,8 +201,8 @@
       }
     });
     if (state.selected !== null) {
-      var j = P.trial.indexOf(state.selected);
-      if (j >= 0 && keys.every(function (k) { return axis(k).values[j] !== null; })) {
+      var j = INDEX[state.selected];
+      if (j !== undefined && keys.every(function (k) { return axis(k).values[j] !== null; })) {
         traces.push(makeTrace([j], keys, is3d, {meta: 'selected', name: 'selected', group: 'selected',
           showlegend: false, marker: {symbol: 'circle-open', size: is3d ? 12 : 22,
           color: '#b5652b', line: {width: 3, color: '#b5652b'}}}));
@@ -201,6 +218,7 @@
   }
 
   function draw2d() {
+    if (!HAVE_PLOTLY || !P.trial.length) { return Promise.resolve(); }
     var keys = [state.x, state.y];
     var layout = {font: FONT, height: 500, hovermode: 'closest', plot_bgcolor: '#fff',
                   paper_bgcolor: 'rgba(0,0,0,0)', margin: {l: 70, r: 20, t: 30, b: 60},
@@ -211,7 +229,7 @@
   }
 
   function draw3d() {
-    if (!has3d || !WEBGL || !state.ready3d) { return Promise.resolve(); }
+    if (!has3d || !HAVE_PLOTLY || !state.ready3d) { return Promise.resolve(); }
     var keys = [state.x, state.y, state.z];
     function ax(id) {
       return {title: {text: esc(axis(id).title)}, gridcolor: '#dfe2e5', backgroundcolor: '#fbfbfa',
@@ -225,17 +243,24 @@
     return Plotly.react('pareto3d', frontTraces(keys, true), layout, CONFIG);
   }
 
+
   var has3d = AXES.length >= 3 && OBJ.length >= 3;
-  var WEBGL = (function () {
-    try {
-      var c = document.createElement('canvas');
-      return !!(window.WebGLRenderingContext && (c.getContext('webgl') || c.getContext('experimental-webgl')));
-    } catch (e) { return false; }
-  }());
+  var webglFlag = null;
+  function webgl() {
+    if (webglFlag === null) {
+      try {
+        var c = document.createElement('canvas');
+        webglFlag = !!(window.WebGLRenderingContext && (c.getContext('webgl') || c.getContext('experimental-webgl')));
+      } catch (e) { webglFlag = false; }
+    }
+    return webglFlag;
+  }
   var NO_WEBGL = 'This view needs WebGL, which is turned off or missing in this browser. ' +
                  'The 2-D view and the tables show the same designs.';
+  var NO_PLOTLY = 'Plots unavailable: the plotting library embedded in this page could not be ' +
+                  'started in this browser';
 
-  function setupFront() {
+  function setupControls() {
     var sx = document.getElementById('sel-x'), sy = document.getElementById('sel-y');
     var sz = document.getElementById('sel-z'), sc = document.getElementById('sel-colour');
     state.x = AXES[0].id;
@@ -262,18 +287,26 @@
     var lx = document.getElementById('chk-logx'), ly = document.getElementById('chk-logy');
     lx.addEventListener('change', function () { state.logx = lx.checked; draw2d(); });
     ly.addEventListener('change', function () { state.logy = ly.checked; draw2d(); });
+  }
+
+  function setupFront() {
+    var box = document.getElementById('pareto2d');
     if (!P.trial.length) {
-      document.getElementById('pareto2d').appendChild(el('p', {'class': 'hint'}, 'No trials to plot.'));
-      return;
+      box.appendChild(el('p', {'class': 'hint'}, 'No trials to plot.'));
+      return Promise.resolve();
     }
-    draw2d().then(function (gd) { gd.on('plotly_click', onPointClick); });
+    if (!HAVE_PLOTLY) {
+      box.appendChild(el('p', {'class': 'hint'}, NO_PLOTLY + '.'));
+      return Promise.resolve();
+    }
+    return draw2d().then(function (gd) { gd.on('plotly_click', onPointClick); });
   }
 
   function setup3d() {
     if (!has3d || !P.trial.length) { return; }
     var box = document.getElementById('pareto3d');
-    if (!WEBGL) {
-      box.appendChild(el('p', {'class': 'hint'}, NO_WEBGL));
+    if (!HAVE_PLOTLY || !webgl()) {
+      box.appendChild(el('p', {'class': 'hint'}, HAVE_PLOTLY ? NO_WEBGL : NO_PLOTLY + '.'));
       box.setAttribute('data-drawn', 'no');
       return;
     }
@@ -293,7 +326,269 @@
     showDesign(Number(pt.customdata), false);
   }
 
-  /* ---------- design panel ---------- */
+  /* ---------- plotly.js: embedded gzip-compressed, base64-encoded ---------- */
+  function loadPlotly() {
+    if (window.Plotly) { return Promise.resolve(); }
+    var box = document.getElementById('plotly-js');
+    if (!box) { return Promise.reject(new Error('plotly.js is missing from this page')); }
+    if (typeof DecompressionStream === 'undefined' || typeof Response === 'undefined' ||
+        typeof Blob === 'undefined' || !Blob.prototype.stream) {
+      return Promise.reject(new Error('this browser cannot unpack it (it needs DecompressionStream: ' +
+                                      'Chrome or Edge 80+, Firefox 113+, Safari 16.4+)'));
+    }
+    return Promise.resolve().then(function () {
+      var bin = atob(box.textContent);
+      var bytes = new Uint8Array(bin.length);
+      for (var i = 0; i < bin.length; i++) { bytes[i] = bin.charCodeAt(i); }
+      var stream = new Blob([bytes]).stream().pipeThrough(new DecompressionStream('gzip'));
+      return new Response(stream).text();
+    }).then(function (code) {
+      (0, eval)(code);  // global scope: plotly.js sets window.Plotly
+      if (!window.Plotly) { throw new Error('plotly.js did not start'); }
+    });
+  }
+
+  /* ---------- values of the Pareto designs ---------- */
+  function numeric(key, i) {
+    var c = P.numeric[key];
+    return c && i !== undefined ? c[i] : null;
+  }
+  function fanOf(i) { return P.categorical.fan && i !== undefined ? P.categorical.fan[i] : null; }
+  /* A key number of a trial: the design's own values first, then its point. */
+  function value(trial, key) {
+    var d = DS.by_trial[String(trial)];
+    if (d) {
+      if (key === 'speed_ratio') { return d.speed_ratio; }
+      var k = DS.key_columns.indexOf(key);
+      if (k >= 0) { return d.key[k]; }
+    }
+    if (key === 'air_density_kg_m3') { return DS.air_density_kg_m3; }
+    return numeric(key, INDEX[trial]);
+  }
+
+  /* The study's devices with this design's temperatures (the rows of report_data's
+     DEVICE_COLUMNS): name, power_W, tj_max_C, mounting, junction_C, margin_K, breakdown_K. */
+  function designDevices(trial) {
+    var d = DS.by_trial[String(trial)];
+    var cols = DS.device_columns;
+    return D.inputs.devices.map(function (dev, k) {
+      var row = d && d.devices[k];
+      var out = {name: dev.name, power_W: dev.power_W, tj_max_C: dev.tj_max_C, mounting: null,
+                 junction_C: null, margin_K: null, breakdown_K: null};
+      if (!row) { return out; }
+      var m = row[cols.indexOf('mounting')];
+      out.mounting = typeof m === 'number' ? dev.mountings[m] : m;
+      out.junction_C = row[cols.indexOf('junction_C')];
+      out.margin_K = row[cols.indexOf('margin_K')];
+      out.breakdown_K = {};
+      BREAKDOWN.forEach(function (b) { out.breakdown_K[b[0]] = row[cols.indexOf(b[0])]; });
+      return out;
+    });
+  }
+
+  /* Fan and system curves of a Pareto design, as report_data.fan_system_curves gives them: the
+     fan array's curve at rated speed scaled by the fan laws (flow × s, pressure × s²), the
+     system curve on its grid with the operating point added. */
+  function atSpeed(curve, s) {
+    return {flow_m3_s: curve.flow_m3_s.map(function (q) { return q * s; }),
+            pressure_Pa: curve.pressure_Pa.map(function (p) { return p * s * s; })};
+  }
+  function designCurves(trial) {
+    var i = INDEX[trial], d = DS.by_trial[String(trial)];
+    var out = {fan: null, name: null, count: null, arrangement: null,
+               speed_ratio: d ? d.speed_ratio : null, air_density_kg_m3: DS.air_density_kg_m3,
+               fan_curve: null, fan_curve_rated: null, stall_limit_m3_s: null,
+               operating_point: null, system_curve: {flow_m3_s: [], pressure_Pa: []}};
+    var qop = numeric('airflow_m3_s', i), pop = numeric('pressure_drop_Pa', i);
+    if (qop !== null && pop !== null) { out.operating_point = {flow_m3_s: qop, pressure_Pa: pop}; }
+    var label = fanOf(i), fan = label !== null ? FANS[label] : undefined;
+    var s = out.speed_ratio;
+    if (fan && s !== null) {
+      out.fan = label;
+      out.name = fan.name;
+      out.count = fan.count;
+      out.arrangement = fan.arrangement;
+      out.fan_curve = atSpeed(fan, s);
+      if (Math.abs(fan.speed_max - s) > 1e-9) { out.fan_curve_rated = atSpeed(fan, fan.speed_max); }
+      if (fan.stall_limit_m3_s !== null) { out.stall_limit_m3_s = fan.stall_limit_m3_s * s; }
+    }
+    if (!d) { return out; }
+    var n = d.system_Pa.length, qs = out.system_curve.flow_m3_s, ps = out.system_curve.pressure_Pa;
+    var op = out.operating_point, placed = !op;
+    for (var k = 0; k < n; k++) {
+      var q = n > 1 ? d.system_q_max_m3_s * k / (n - 1) : 0;
+      if (!placed && op.flow_m3_s <= q) {
+        placed = true;
+        if (op.flow_m3_s < q) { qs.push(op.flow_m3_s); ps.push(op.pressure_Pa); }
+      }
+      if (d.system_Pa[k] !== null) { qs.push(q); ps.push(d.system_Pa[k]); }
+    }
+    if (!placed) { qs.push(op.flow_m3_s); ps.push(op.pressure_Pa); }
+    return out;
+  }
+
+  /* ---------- figures of a design ---------- */
+  function maxOf(list) {
+    var m = -Infinity;
+    list.forEach(function (v) { if (v !== null && v > m) { m = v; } });
+    return m;
+  }
+  function baseLayout(extra) {
+    return Object.assign({font: FONT, paper_bgcolor: 'rgba(0,0,0,0)', plot_bgcolor: '#ffffff',
+                          margin: {l: 60, r: 20, t: 30, b: 50}, hovermode: 'closest',
+                          legend: {orientation: 'h', y: -0.25, x: 0}}, extra);
+  }
+  function axisStyle(title, extra) {
+    return Object.assign({title: {text: title}, gridcolor: GRID, zerolinecolor: '#c9ccd0',
+                          linecolor: '#9aa0a6', showline: true, mirror: true}, extra || {});
+  }
+
+  /* Fan-array curve(s) against the system curve, with the operating point and the stall
+     region shaded; flows drawn in m³/h. */
+  function fanSystemFigure(c) {
+    var h = 3600, traces = [], pTop = 0;
+    function perHour(list) { return list.map(function (q) { return q * h; }); }
+    var sysc = c.system_curve || {flow_m3_s: [], pressure_Pa: []};
+    var stall = c.stall_limit_m3_s, rated = c.fan_curve_rated, fan = c.fan_curve;
+    if (rated && rated.flow_m3_s.length) {
+      traces.push({type: 'scatter', x: perHour(rated.flow_m3_s), y: rated.pressure_Pa, mode: 'lines',
+                   name: 'fans at top of speed range', line: {color: '#9aa0a6', dash: 'dot', width: 1.5},
+                   hovertemplate: '%{x:.4g} m³/h, %{y:.4g} Pa<extra>top speed</extra>'});
+      pTop = Math.max(pTop, maxOf(rated.pressure_Pa));
+    }
+    if (fan && fan.flow_m3_s.length) {
+      var q = perHour(fan.flow_m3_s), p = fan.pressure_Pa, all = q.map(function (_, k) { return k; });
+      pTop = Math.max(pTop, maxOf(p));
+      var label = esc(c.fan || 'fan');
+      var name = c.speed_ratio ? label + ' at ' + (c.speed_ratio * 100).toFixed(0) + ' % speed' : label;
+      var stable = all;
+      if (stall) {
+        var qs = stall * h;
+        var unstable = all.filter(function (k) { return q[k] <= qs * (1 + 1e-9); });
+        stable = all.filter(function (k) { return q[k] >= qs * (1 - 1e-9); });
+        if (unstable.length > 1) {
+          traces.push({type: 'scatter', x: unstable.map(function (k) { return q[k]; }),
+                       y: unstable.map(function (k) { return p[k]; }), mode: 'lines',
+                       name: 'fans, stall region', line: {color: ACCENT, dash: 'dash', width: 2},
+                       hovertemplate: '%{x:.4g} m³/h, %{y:.4g} Pa<extra>stall region</extra>'});
+        }
+      }
+      traces.push({type: 'scatter', x: stable.map(function (k) { return q[k]; }),
+                   y: stable.map(function (k) { return p[k]; }), mode: 'lines', name: name,
+                   line: {color: ACCENT, width: 2.5},
+                   hovertemplate: '%{x:.4g} m³/h, %{y:.4g} Pa<extra>fans</extra>'});
+    }
+    if (sysc.flow_m3_s.length) {
+      traces.push({type: 'scatter', x: perHour(sysc.flow_m3_s), y: sysc.pressure_Pa, mode: 'lines',
+                   name: 'system (sink and extra losses)', line: {color: INK, width: 2},
+                   hovertemplate: '%{x:.4g} m³/h, %{y:.4g} Pa<extra>system</extra>'});
+    }
+    var op = c.operating_point;
+    if (op) {
+      traces.push({type: 'scatter', x: [op.flow_m3_s * h], y: [op.pressure_Pa], mode: 'markers',
+                   name: 'operating point',
+                   marker: {size: 11, color: WARM, line: {color: INK, width: 1.5}},
+                   hovertemplate: 'operating point<br>%{x:.4g} m³/h, %{y:.4g} Pa<extra></extra>'});
+      pTop = Math.max(pTop, op.pressure_Pa * 1.2);
+    }
+    if (!(pTop > 0)) { pTop = sysc.pressure_Pa.length ? maxOf(sysc.pressure_Pa) : 1; }
+    var shapes = [], notes = [];
+    if (stall) {
+      shapes.push({type: 'rect', xref: 'x', yref: 'paper', x0: 0, x1: stall * h, y0: 0, y1: 1,
+                   fillcolor: 'rgba(181,101,43,0.12)', line: {width: 0}, layer: 'below'});
+      notes.push({x: stall * h / 2, y: 1, xref: 'x', yref: 'paper', yanchor: 'top',
+                  text: 'stall region at this speed', showarrow: false, font: {color: WARM, size: 11}});
+    }
+    return {data: traces, layout: baseLayout({
+      height: 340, shapes: shapes, annotations: notes,
+      xaxis: axisStyle('airflow [m³/h]', {rangemode: 'tozero'}),
+      yaxis: axisStyle('static pressure [Pa]', {range: [0, pTop * 1.08]})})};
+  }
+
+  /* Stacked temperature rises from the inlet air to each junction, one bar per device, with
+     each device's allowed rise (Tj,max − inlet air) marked. */
+  function breakdownFigure(devices, ambient) {
+    var names = devices.map(function (d) { return esc(d.name); });
+    var traces = BREAKDOWN.map(function (b) {
+      return {type: 'bar', x: names, name: b[1], marker: {color: b[2]},
+              y: devices.map(function (d) {
+                var v = (d.breakdown_K || {})[b[0]];
+                return v === undefined ? null : v;
+              }),
+              hovertemplate: '%{x}: %{y:.3g} K<extra>' + esc(b[1]) + '</extra>'};
+    });
+    if (ambient !== null && ambient !== undefined) {
+      traces.push({type: 'scatter', x: names, mode: 'markers',
+                   y: devices.map(function (d) { return d.tj_max_C - ambient; }),
+                   name: 'allowed rise (Tj,max − inlet air)',
+                   marker: {symbol: 'line-ew-open', size: 34, color: WARM, line: {width: 2.5, color: WARM}},
+                   hovertemplate: '%{x}: allowed %{y:.3g} K<extra></extra>'});
+    }
+    return {data: traces, layout: baseLayout({
+      height: 340, barmode: 'stack', bargap: 0.45,
+      xaxis: axisStyle('device', {type: 'category'}),
+      yaxis: axisStyle('temperature rise above inlet air [K]', {rangemode: 'tozero'})})};
+  }
+
+  /* ---------- drawings: report_data.sink_drawing, in the browser ---------- */
+  /* Python's format(v, '.<d>g'). */
+  function gfmt(v, d) {
+    if (v === 0) { return '0'; }
+    if (!isFinite(v)) { return String(v); }
+    var parts = v.toExponential(d - 1).split('e'), exp = parseInt(parts[1], 10);
+    function strip(s) { return s.indexOf('.') >= 0 ? s.replace(/0+$/, '').replace(/\.$/, '') : s; }
+    if (exp < -4 || exp >= d) {
+      return strip(parts[0]) + 'e' + (exp < 0 ? '-' : '+') + (Math.abs(exp) < 10 ? '0' : '') + Math.abs(exp);
+    }
+    return strip(v.toFixed(Math.max(0, d - 1 - exp)));
+  }
+  function dimShapes(x1, y1, x2, y2, text, tx, ty, anchor) {
+    return [{kind: 'dim', x1: x1, y1: y1, x2: x2, y2: y2},
+            {kind: 'text', x: tx, y: ty, text: text, anchor: anchor || 'middle', cls: 'dimtext'}];
+  }
+  /* To-scale front view (looking along the flow) and plan view (from the fin side, inlet at the
+     bottom) of a plate-fin sink, as shapes in millimetres: the same shapes as
+     report_data.sink_drawing (the tests compare the two). */
+  function sinkDrawing(params, devices, scale) {
+    var W = Number(params.width_mm), L = Number(params.length_mm), H = Number(params.fin_height_mm);
+    var t = Number(params.fin_thickness_mm), N = Math.round(Number(params.n_fins));
+    var tb = Number(params.base_thickness_mm);
+    var gap = (W - N * t) / Math.max(N - 1, 1), pitch = t + gap;
+    var px = 1 / scale, font = 11 * px, i;
+    function view(x0, y0, x1, y1, shapes) {
+      return {view_box: [x0, y0, x1 - x0, y1 - y0], width_px: (x1 - x0) * scale,
+              height_px: (y1 - y0) * scale, font_mm: font, scale_px_per_mm: scale, shapes: shapes};
+    }
+    var front = [{kind: 'text', x: W / 2, y: -10 * px, text: N + ' fins, t ' + gfmt(t, 3) + ' mm, gap ' +
+                  gfmt(gap, 3) + ' mm', anchor: 'middle', cls: 'note'},
+                 {kind: 'rect', x: 0, y: H, w: W, h: tb, cls: 'metal'}];
+    for (i = 0; i < N; i++) { front.push({kind: 'rect', x: i * pitch, y: 0, w: t, h: H, cls: 'metal'}); }
+    var yb = H + tb, xr = W + 12 * px;
+    front = front.concat(dimShapes(0, yb + 14 * px, W, yb + 14 * px, 'W ' + gfmt(W, 4) + ' mm', W / 2, yb + 28 * px),
+                         dimShapes(xr, 0, xr, H, 'H ' + gfmt(H, 3) + ' mm', xr + 6 * px, H / 2 + 4 * px, 'start'),
+                         dimShapes(xr, H, xr, yb, 'base ' + gfmt(tb, 3) + ' mm', xr + 6 * px, H + tb / 2 + 4 * px, 'start'));
+    var frontView = view(-6 * px, -24 * px, W + 100 * px, yb + 36 * px, front);
+
+    var plan = [{kind: 'rect', x: 0, y: 0, w: W, h: L, cls: 'base'}];
+    for (i = 0; i < N; i++) { plan.push({kind: 'rect', x: i * pitch, y: 0, w: t, h: L, cls: 'fin'}); }
+    (devices || []).forEach(function (d) {
+      var cx = Number(d.center_x_mm), cy = Number(d.center_y_mm);
+      var sx = Number(d.size_x_mm), sy = Number(d.size_y_mm);
+      plan.push({kind: 'rect', x: cx - sx / 2, y: L - (cy + sy / 2), w: sx, h: sy, cls: 'device'});
+      plan.push({kind: 'text', x: cx, y: L - cy + 4 * px, text: String(d.name), anchor: 'middle',
+                 cls: 'devtext'});
+    });
+    var xa = -22 * px;
+    plan.push({kind: 'arrow', x1: xa, y1: L, x2: xa, y2: Math.max(L - 60 * px, 0)});
+    plan.push({kind: 'text', x: xa, y: L + 14 * px, text: 'air in', anchor: 'middle', cls: 'note'});
+    plan.push({kind: 'text', x: W / 2, y: -8 * px, text: 'outlet edge (devices under the base, dashed)',
+               anchor: 'middle', cls: 'note'});
+    plan = plan.concat(dimShapes(0, L + 14 * px, W, L + 14 * px, 'W ' + gfmt(W, 4) + ' mm', W / 2, L + 28 * px),
+                       dimShapes(xr, 0, xr, L, 'L ' + gfmt(L, 4) + ' mm', xr + 6 * px, L / 2 + 4 * px, 'start'));
+    var planView = view(-44 * px, -22 * px, W + 90 * px, L + 36 * px, plan);
+    return {front: frontView, plan: planView, gap_mm: gap, pitch_mm: pitch};
+  }
+
   function drawSvg(view, title) {
     var vb = view.view_box;
     var svg = svgEl('svg', {'class': 'sink', width: view.width_px.toFixed(1), height: view.height_px.toFixed(1),
@@ -333,6 +628,7 @@
     return svg;
   }
 
+  /* ---------- design panel ---------- */
   var KEYS = [
     ['volume_cm3', 'sink volume', 'cm³', 1],
     ['mass_kg', 'sink mass', 'kg', 1],
@@ -405,22 +701,22 @@
   }
 
   function showOther(panel, trial) {
-    var i = P.trial.indexOf(trial);
+    var i = INDEX[trial];
     var h = el('div', {'class': 'dhead'});
     h.appendChild(el('h3', {id: 'design-title'}, 'Trial ' + trial));
-    var st = i < 0 ? 'unknown' : P.status[i];
+    var st = i === undefined ? 'unknown' : P.status[i];
     h.appendChild(el('span', {'class': 'badge ' + (st === 'infeasible' ? 'bad' : 'ok')},
                      st === 'infeasible' ? 'infeasible' : 'feasible, not on the front'));
     panel.appendChild(h);
     panel.appendChild(el('p', {'class': 'note'}, 'This trial is not a Pareto design, so the report ' +
-      'keeps only its summary (' + (i >= 0 && P.exact[i] ? 'exact series' : 'search model') +
+      'keeps only its summary (' + (i !== undefined && P.exact[i] ? 'exact series' : 'search model') +
       '). Run sinkopt evaluate with its values from trials.csv for the full detail.'));
-    if (i < 0) { return; }
+    if (i === undefined) { return; }
     var keys = el('div', {'class': 'keys'});
     [['volume_cm3', 'sink volume', 'cm³', 1], ['fan_power_W', 'fan electrical power', 'W', 1],
      ['worst_margin_K', 'worst junction margin', 'K', 1], ['airflow_m3_s', 'airflow', 'm³/h', 3600]]
       .forEach(function (k) {
-        var v = P.numeric[k[0]] ? P.numeric[k[0]][i] : null;
+        var v = numeric(k[0], i);
         keys.appendChild(keyBox(k[0], k[1], v === null ? null : v * k[3], k[2]));
       });
     panel.appendChild(keys);
@@ -436,20 +732,21 @@
     });
     draw2d();
     draw3d();
-    var d = D.designs[String(trial)];
-    if (!d) {
+    if (!DS.by_trial[String(trial)]) {
       showOther(panel, trial);
     } else {
-      renderDesign(panel, d);
+      renderDesign(panel, trial);
     }
     if (scroll) { document.getElementById('design').scrollIntoView({block: 'start'}); }
     if (history.replaceState) { history.replaceState(null, '', '#trial-' + trial); }
   }
 
-  function renderDesign(panel, d) {
+  function renderDesign(panel, trial) {
+    var d = DS.by_trial[String(trial)], i = INDEX[trial], fan = fanOf(i);
+    var devices = designDevices(trial);
     var head = el('div', {'class': 'dhead'});
-    head.appendChild(el('h3', {id: 'design-title'}, 'Trial ' + d.trial));
-    if (d.fan) { head.appendChild(el('span', {'class': 'fan'}, 'fan: ' + d.fan)); }
+    head.appendChild(el('h3', {id: 'design-title'}, 'Trial ' + trial));
+    if (fan) { head.appendChild(el('span', {'class': 'fan'}, 'fan: ' + fan)); }
     head.appendChild(el('span', {'class': 'badge ' + (d.feasible ? 'ok' : 'bad')},
                         d.feasible ? 'meets every constraint' : 'violates a constraint'));
     head.appendChild(el('span', {'class': 'note'}, 'exact spreading series'));
@@ -457,40 +754,46 @@
 
     panel.appendChild(el('h4', null, 'Geometry'));
     var dims = el('div', {'class': 'keys'});
-    DIMS.forEach(function (k) { dims.appendChild(keyBox(k[0], k[1], d.params[k[0]], k[2])); });
+    DIMS.forEach(function (k) { dims.appendChild(keyBox(k[0], k[1], numeric(k[0], i), k[2])); });
     panel.appendChild(dims);
 
     panel.appendChild(el('h4', null, 'Results'));
     var keys = el('div', {'class': 'keys'});
     KEYS.forEach(function (k) {
-      var v = d.key[k[0]];
+      var v = value(trial, k[0]);
+      if (v === undefined) { v = null; }
       if (k[0] === 'noise_dBA' && v === null) { return; }
       if (k[0] === 'speed_ratio' && v === null) { return; }
-      if (!d.fan && (k[0] === 'fan_power_W' || k[0] === 'noise_dBA')) { return; }
+      if (!fan && (k[0] === 'fan_power_W' || k[0] === 'noise_dBA')) { return; }
       keys.appendChild(keyBox(k[0], k[1], v === null ? null : v * k[3], k[2]));
     });
     panel.appendChild(keys);
     panel.appendChild(el('p', {'class': 'note'},
-      'Air: in at ' + fmt(d.ambient_C) + ' °C, out at ' + fmt(d.key.air_outlet_C) + ' °C (mixed mean), rise ' +
-      fmt(d.key.air_rise_K, 3) + ' K; site air density ' + fmt(d.key.air_density_kg_m3, 3) + ' kg/m³.'));
+      'Air: in at ' + fmt(DS.ambient_C) + ' °C, out at ' + fmt(value(trial, 'air_outlet_C')) +
+      ' °C (mixed mean), rise ' + fmt(value(trial, 'air_rise_K'), 3) + ' K; site air density ' +
+      fmt(DS.air_density_kg_m3, 3) + ' kg/m³.'));
 
     panel.appendChild(el('h4', null, 'Drawings (to scale, mm)'));
+    var params = {};
+    DIMS.forEach(function (k) { params[k[0]] = numeric(k[0], i); });
+    var drawing = sinkDrawing(params, D.inputs.devices, DS.drawing_scale_px_per_mm);
     var drawings = el('div', {'class': 'drawings'});
     var f1 = el('figure');
     f1.appendChild(el('figcaption', null, 'Front view, looking along the flow'));
-    f1.appendChild(drawSvg(d.drawing.front, 'front view of trial ' + d.trial));
+    f1.appendChild(drawSvg(drawing.front, 'front view of trial ' + trial));
     var f2 = el('figure');
     f2.appendChild(el('figcaption', null, 'Plan view from the fin side, air entering at the bottom'));
-    f2.appendChild(drawSvg(d.drawing.plan, 'plan view of trial ' + d.trial));
+    f2.appendChild(drawSvg(drawing.plan, 'plan view of trial ' + trial));
     drawings.appendChild(f1);
     drawings.appendChild(f2);
     panel.appendChild(drawings);
 
+    var curves = designCurves(trial);
     var grid = el('div', {'class': 'grid2'});
     var c1 = el('figure');
-    c1.appendChild(el('figcaption', null, d.curves.fan_curve ?
-      'Fans against the system, at the site air density' + (d.curves.name ? ' (' + d.curves.name +
-        (d.curves.count > 1 ? ', ' + d.curves.count + ' in ' + d.curves.arrangement : '') + ')' : '') :
+    c1.appendChild(el('figcaption', null, curves.fan_curve ?
+      'Fans against the system, at the site air density' + (curves.name ? ' (' + curves.name +
+        (curves.count > 1 ? ', ' + curves.count + ' in ' + curves.arrangement : '') + ')' : '') :
       'System curve and the given airflow, at the site air density'));
     var fs = el('div', {id: 'fan-system', 'class': 'plot'});
     c1.appendChild(fs);
@@ -501,14 +804,28 @@
     grid.appendChild(c1);
     grid.appendChild(c2);
     panel.appendChild(grid);
-    var figs = F.designs[String(d.trial)];
-    if (figs) {
-      Plotly.newPlot(fs, figs.fan_system.data, figs.fan_system.layout, CONFIG);
-      Plotly.newPlot(bd, figs.breakdown.data, figs.breakdown.layout, CONFIG);
+    function drawFigures() {
+      if (!fs.isConnected) { return; }  // another design was opened meanwhile
+      fs.replaceChildren();
+      bd.replaceChildren();
+      if (HAVE_PLOTLY) {
+        var f = fanSystemFigure(curves), b = breakdownFigure(devices, DS.ambient_C);
+        Plotly.newPlot(fs, f.data, f.layout, CONFIG);
+        Plotly.newPlot(bd, b.data, b.layout, CONFIG);
+      } else {
+        fs.appendChild(el('p', {'class': 'hint'}, NO_PLOTLY + '.'));
+        bd.appendChild(el('p', {'class': 'hint'}, NO_PLOTLY + '.'));
+      }
+    }
+    if (plotlyState === 'loading') {  // a row clicked while plotly.js is being unpacked
+      fs.appendChild(el('p', {'class': 'hint'}, 'Loading the plots…'));
+      plotlyReady.then(drawFigures);
+    } else {
+      drawFigures();
     }
 
     panel.appendChild(el('h4', null, 'Devices'));
-    var rows = d.devices.map(function (dv) {
+    var rows = devices.map(function (dv) {
       var b = dv.breakdown_K || {};
       return [dv.name, dv.power_W, dv.mounting, dv.junction_C, dv.tj_max_C, dv.margin_K,
               b.air_heating_upstream, b.sink_and_spreading, b.mounting_stack, b.junction_to_case];
@@ -518,7 +835,7 @@
                    rows, 'devices');
     dt.id = 'design-devices';
     dt.querySelectorAll('tbody tr').forEach(function (tr, k) {
-      var m = d.devices[k].margin_K;
+      var m = devices[k].margin_K;
       if (m !== null && m < 0) { tr.children[5].classList.add('neg'); }
     });
     var wrap = el('div', {'class': 'scroll'});
@@ -528,37 +845,82 @@
     panel.appendChild(el('h4', null, 'Warnings'));
     if (d.warnings.length) {
       var ul = el('ul', {'class': 'warnings'});
-      d.warnings.forEach(function (w) { ul.appendChild(el('li', null, w)); });
+      d.warnings.forEach(function (k) { ul.appendChild(el('li', null, DS.warnings[k])); });
       panel.appendChild(ul);
     } else {
       panel.appendChild(el('p', {'class': 'note'}, 'None: every correlation within its range, no stall.'));
     }
-    if (d.spreading_check) {
-      var sc = d.spreading_check;
-      var parts = Object.keys(sc.junction_difference_K).map(function (k) {
-        var v = sc.junction_difference_K[k];
-        return k + ' ' + (v === null ? '–' : (v >= 0 ? '+' : '') + fmt(v, 2)) + ' K';
+    if (d.spreading) {
+      var model = DS.spreading_models[d.spreading[0]] || [null, null], largest = null;
+      var parts = devices.map(function (dv, k) {
+        var v = d.spreading[1][k];
+        if (v !== null && (largest === null || Math.abs(v) > largest)) { largest = Math.abs(v); }
+        return dv.name + ' ' + (v === null ? '–' : (v >= 0 ? '+' : '') + fmt(v, 2)) + ' K';
       });
       panel.appendChild(el('p', {'class': 'note', id: 'spreading-check'},
         'Spreading check: junction temperatures with the exact series minus the search model (' +
-        sc.search_model + '): largest ' + fmt(sc.max_abs_K, 2) + ' K (' + parts.join(', ') + ').'));
+        model[0] + '): largest ' + fmt(largest, 2) + ' K (' + parts.join(', ') + ').'));
     }
 
     panel.appendChild(el('h4', null, 'Reproduce this design'));
+    var command = DS.command_prefix + d.command;
     var cmd = el('div', {'class': 'cmd'});
-    var pre = el('pre', {id: 'evaluate-command'}, d.evaluate_command);
+    var pre = el('pre', {id: 'evaluate-command'}, command);
     var btn = el('button', {type: 'button', 'class': 'copy'}, 'Copy command');
     var note = el('span', {'class': 'copied', 'aria-live': 'polite'});
-    btn.addEventListener('click', function () { copyText(d.evaluate_command, note); });
+    btn.addEventListener('click', function () { copyText(command, note); });
     cmd.appendChild(pre);
     cmd.appendChild(btn);
     cmd.appendChild(note);
     panel.appendChild(cmd);
   }
 
-  /* ---------- sortable table ---------- */
+  /* ---------- sortable table of the Pareto designs ---------- */
+  function tableValue(trial, key) {
+    var d = DS.by_trial[String(trial)];
+    if (key === 'trial') { return trial; }
+    if (key === 'fan') { return fanOf(INDEX[trial]); }
+    if (key === 'n_warnings') { return d ? d.warnings.length : null; }
+    var v = value(trial, key);
+    return v === undefined ? null : v;
+  }
+
+  function buildTable() {
+    var box = document.getElementById('pareto-table-box');
+    var cols = D.table.columns;
+    if (!DS.trials.length) {
+      box.appendChild(el('p', null, 'No feasible design was found, so the front is empty; ' +
+                                    'trials.csv lists the closest designs.'));
+      return null;
+    }
+    var t = el('table', {id: 'pareto-table', 'class': 'sortable'});
+    var head = el('tr');
+    cols.forEach(function (c) {
+      var th = el('th', {scope: 'col', 'data-kind': c.kind, 'aria-sort': 'none'});
+      th.appendChild(el('button', {type: 'button'}, c.label + unitText(c.unit)));
+      head.appendChild(th);
+    });
+    var thead = el('thead');
+    thead.appendChild(head);
+    t.appendChild(thead);
+    var body = el('tbody'), frag = document.createDocumentFragment();
+    DS.trials.forEach(function (trial) {
+      var tr = el('tr', {'data-trial': String(trial), tabindex: '0'});
+      cols.forEach(function (c) {
+        var v = tableValue(trial, c.key);
+        var td = el('td', {'data-v': v === null ? '' : String(v)}, fmt(v));
+        tr.appendChild(td);
+      });
+      frag.appendChild(tr);
+    });
+    body.appendChild(frag);
+    t.appendChild(body);
+    box.appendChild(t);
+    return t;
+  }
+
   function setupTable() {
-    var t = document.getElementById('pareto-table');
+    var t = buildTable();
     if (!t) { return; }
     var ths = t.querySelectorAll('thead th');
     ths.forEach(function (th, col) {
@@ -588,47 +950,102 @@
   }
 
   /* ---------- parallel coordinates ---------- */
+  /* Every trial with objective values; categorical variables as integer codes; colour
+     0 infeasible, 1 feasible dominated, 2 Pareto. */
+  function parcoordsFigure() {
+    var keep = [];
+    for (var i = 0; i < P.trial.length; i++) {
+      var ok = OBJ.every(function (o) { return P.objectives[o.name][i] !== null; });
+      if (ok) { keep.push(i); }
+    }
+    if (!keep.length || !D.parcoords.dimensions.length) { return null; }
+    var dims = D.parcoords.dimensions.map(function (d) {
+      var dim = {label: esc(d.label + unitText(d.unit))};
+      if (d.from === 'categorical') {
+        var labels = P.categorical[d.key];
+        dim.values = keep.map(function (k) { return d.ticktext.indexOf(labels[k]); });
+        dim.tickvals = d.ticktext.map(function (_, k) { return k; });
+        dim.ticktext = d.ticktext.map(esc);
+      } else {
+        var col = d.from === 'objectives' ? P.objectives[d.key] : P.numeric[d.key];
+        dim.values = keep.map(function (k) { return col[k]; });
+      }
+      return dim;
+    });
+    var codes = {infeasible: 0, feasible: 1, pareto: 2};
+    var line = {color: keep.map(function (k) { return codes[P.status[k]]; }), cmin: 0, cmax: 2,
+                showscale: false, colorscale: [[0, '#d5d8dc'], [0.5, '#9fb3c2'], [1, WARM]]};
+    var trace = {type: 'parcoords', line: line, dimensions: dims, labelangle: -20,
+                 labelside: 'bottom', labelfont: {size: 11}, tickfont: {size: 10},
+                 rangefont: {size: 9}};
+    return {data: [trace], layout: {font: FONT, paper_bgcolor: 'rgba(0,0,0,0)', height: 460,
+                                    margin: {l: 150, r: 60, t: 40, b: 90}}};
+  }
+
   function setupParcoords() {
     var box = document.getElementById('parcoords');
-    if (!F.parcoords) {
+    var fig = parcoordsFigure();
+    if (!fig) {
       box.appendChild(el('p', {'class': 'hint'}, 'No trials with objective values.'));
       return;
     }
-    if (!WEBGL) {
-      box.appendChild(el('p', {'class': 'hint'}, NO_WEBGL));
+    if (!HAVE_PLOTLY || !webgl()) {
+      box.appendChild(el('p', {'class': 'hint'}, HAVE_PLOTLY ? NO_WEBGL : NO_PLOTLY + '.'));
       box.setAttribute('data-drawn', 'no');
       return;
     }
-    Plotly.newPlot(box, F.parcoords.data, F.parcoords.layout, CONFIG).then(function () {
+    Plotly.newPlot(box, fig.data, fig.layout, CONFIG).then(function () {
       box.setAttribute('data-drawn', 'yes');
     }, function (err) {
       box.replaceChildren(el('p', {'class': 'hint'}, 'Parallel coordinates unavailable in this browser (' + err + ').'));
     });
   }
 
-  setupFront();
-  setupTable();
-  var m = /^#trial-(\d+)$/.exec(window.location.hash);
-  if (m) { showDesign(Number(m[1]), true); }
-  document.body.setAttribute('data-ready', 'yes');
-  // The WebGL views come after the first paint (3-D) and when scrolled near (parallel
-  // coordinates): with software rendering they take seconds.
-  window.requestAnimationFrame(function () {
-    window.setTimeout(function () {
-      setup3d();
-      document.body.setAttribute('data-webgl', WEBGL ? 'yes' : 'no');
-    }, 0);
+  /* The figure and drawing builders, for scripts and tests (nothing here changes the page). */
+  window.sinkoptReport = {sinkDrawing: sinkDrawing, designCurves: designCurves,
+                          designDevices: designDevices, fanSystemFigure: fanSystemFigure,
+                          breakdownFigure: breakdownFigure, parcoordsFigure: parcoordsFigure};
+
+  /* ---------- start ---------- */
+  plotlyReady = loadPlotly().then(function () {  // unpacked while the table is built
+    HAVE_PLOTLY = true;
+    plotlyState = 'ready';
+  }, function (err) {
+    plotlyState = 'failed';
+    var box = document.getElementById('page-error');
+    box.textContent = NO_PLOTLY + ' (' + (err && err.message ? err.message : err) + '). The tables, ' +
+      'the design panel and the drawings still work.';
+    box.hidden = false;
   });
-  var pc = document.getElementById('parcoords');
-  if (window.IntersectionObserver) {
-    var seen = new IntersectionObserver(function (entries) {
-      if (entries.some(function (e) { return e.isIntersecting; })) {
-        seen.disconnect();
-        setupParcoords();
-      }
-    }, {rootMargin: '300px'});
-    seen.observe(pc);
-  } else {
-    setupParcoords();
-  }
+  setupControls();
+  setupTable();
+  plotlyReady.then(setupFront).then(function () {
+    var m = /^#trial-(\d+)$/.exec(window.location.hash);
+    if (m) { showDesign(Number(m[1]), true); }
+  }).catch(function (err) {
+    if (window.console) { console.error(err); }
+  }).then(function () {
+    document.body.setAttribute('data-ready-ms', String(Math.round(performance.now())));
+    document.body.setAttribute('data-ready', 'yes');
+    // The WebGL views come after the first paint (3-D) and when scrolled near (parallel
+    // coordinates): with software rendering they take seconds.
+    window.requestAnimationFrame(function () {
+      window.setTimeout(function () {
+        setup3d();
+        document.body.setAttribute('data-webgl', webgl() ? 'yes' : 'no');
+      }, 0);
+    });
+    var pc = document.getElementById('parcoords');
+    if (window.IntersectionObserver) {
+      var seen = new IntersectionObserver(function (entries) {
+        if (entries.some(function (e) { return e.isIntersecting; })) {
+          seen.disconnect();
+          setupParcoords();
+        }
+      }, {rootMargin: '300px'});
+      seen.observe(pc);
+    } else {
+      setupParcoords();
+    }
+  });
 }());
