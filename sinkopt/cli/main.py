@@ -63,6 +63,13 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("sinkopt: interrupted", file=sys.stderr)
         return EXIT_INTERRUPTED
+    except BrokenPipeError:
+        # the reader of our output went away (``sinkopt evaluate --json | head``): not an error
+        import os
+
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        return EXIT_OK
     except Exception as exc:  # noqa: BLE001 - the last line of defence for a CLI
         if args.verbose >= 2:
             raise

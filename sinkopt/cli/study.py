@@ -4,6 +4,7 @@ from __future__ import annotations
 import argparse
 import contextlib
 import json
+import math
 import signal
 import sys
 import time
@@ -90,9 +91,14 @@ def parse_set(problem, items: list[str]) -> dict:
         v = known[name]
         try:
             if v.kind == "int":
-                value = int(float(text))
+                number = float(text)
+                if not number.is_integer():
+                    raise InputError(f"must be a whole number, got {text!r}", field=f"--set {name}")
+                value = int(number)
             elif v.kind == "float":
                 value = float(text)
+                if not math.isfinite(value):
+                    raise InputError(f"must be a finite number, got {text!r}", field=f"--set {name}")
             else:
                 value = text
                 choices = [str(c) for c in v.choices] or ([str(v.fixed)] if v.is_fixed else [])
@@ -103,6 +109,13 @@ def parse_set(problem, items: list[str]) -> dict:
             if isinstance(exc, InputError):
                 raise
             raise InputError(f"expected a number, got {text!r}", field=f"--set {name}") from None
+        if v.kind in ("int", "float"):
+            lo, hi = (v.fixed, v.fixed) if v.is_fixed else (v.low, v.high)
+            if not lo <= value <= hi:
+                span = (f"fixed at {lo:g} in the study" if v.is_fixed
+                        else f"the study's range is {lo:g} … {hi:g}")
+                raise InputError(f"{value:g} is outside what the study allows ({span})",
+                                 field=f"--set {name}")
         params[name] = value
     for v in problem.variables:
         if v.name in params or v.is_fixed:
@@ -124,6 +137,7 @@ def cmd_evaluate(args) -> int:
     params = parse_set(problem, [s for group in args.sets for s in group])
     result = evaluate_params(problem, [params], spreading=args.spreading)
     rec = design_record(problem, result, 0)
+    rec["failed_constraints"] = failed_constraints(rec)
     if args.json:
         json.dump(rec, sys.stdout, indent=2, allow_nan=False)
         sys.stdout.write("\n")
@@ -156,8 +170,42 @@ def _print_design(rec: dict) -> None:
     for d in rec["devices"]:
         print(f"    {d['name']:<16} Tj {_fmt(d['junction_C'], '°C')}  margin {_fmt(d['margin_K'], 'K')}"
               f"  (limit {d['tj_max_C']} °C, mounting {d['mounting']})")
+    failing = failed_constraints(rec)
+    if failing:
+        print("  fails: " + "; ".join(failing))
     for w in rec["warnings"]:
         print(f"  warning: {w}")
+
+
+_CONSTRAINT_TEXT = {
+    "junction_margin_K": ("junction margin", "K short of the required margin"),
+    "failed_fan_margin_K": ("junction margin with one fan stopped", "K short"),
+    "fin_gap_mm": ("fin gap", "mm below the process minimum"),
+    "fin_thickness_mm": ("fin thickness", "mm below the process minimum"),
+    "fin_aspect": ("fin height / gap", "above the process maximum"),
+    "base_thickness_mm": ("base thickness", "mm below the process minimum"),
+    "devices_on_base_mm": ("device footprints", "mm off the base"),
+    "airflow": ("airflow", "no fan operating point"),
+    "fan_stall": ("fan stall", "operating point in the stall region"),
+}
+
+
+def failed_constraints(rec: dict) -> list[str]:
+    """Each violated constraint of a design record, with by how much."""
+    out = []
+    constraints = rec.get("constraints", {})
+    no_air = (constraints.get("airflow") or 0) > 0
+    for name, value in constraints.items():
+        if value is None or value <= 0:
+            continue
+        if no_air and name in ("junction_margin_K", "failed_fan_margin_K"):
+            continue  # no temperatures without an operating point
+        what, unit = _CONSTRAINT_TEXT.get(name, (name.replace("_", " "), "over the limit"))
+        if name in ("airflow", "fan_stall"):
+            out.append(f"{what}: {unit}")
+        else:
+            out.append(f"{what}: {value:.3g} {unit}")
+    return out
 
 
 @contextlib.contextmanager
@@ -221,8 +269,14 @@ def cmd_run(args) -> int:
     input_warnings: list[str] = []
     problem = _load(args.study, input_warnings)
     out = args.out or problem.default_results_dir()
+    if out.exists() and not out.is_dir():
+        raise InputError(f"{out} is a file, not a folder: give a results folder", field="--out")
+    if args.trials is not None and args.trials < 1:
+        raise InputError(f"must be 1 or more, got {args.trials}", field="--trials")
+    if args.workers < 1:
+        raise InputError(f"must be 1 or more, got {args.workers}", field="--workers")
     out.mkdir(parents=True, exist_ok=True)
-    n_trials = args.trials or problem.trials
+    n_trials = problem.trials if args.trials is None else args.trials
     seed = args.seed if args.seed is not None else problem.seed
     if seed is None:
         seed = random.SystemRandom().randrange(2**31)
@@ -270,6 +324,10 @@ def cmd_run(args) -> int:
     n_front = len(results.pareto_trials)
     print(f"{len(results.trial_numbers)} trials, {int(results.search.feasible.sum())} feasible "
           f"(search model), {n_front} designs on the Pareto front -> {out}")
+    if len(results.trial_numbers) > n_trials:
+        print(f"sinkopt: {len(results.trial_numbers) - n_trials} trials more than the {n_trials} "
+              "asked for: parallel workers each finish the batch in hand (at most "
+              "(workers − 1) × batch extra)", file=sys.stderr)
     if interrupted:
         print("sinkopt: interrupted; results saved, run again to resume", file=sys.stderr)
         return EXIT_INTERRUPTED

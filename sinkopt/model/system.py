@@ -519,7 +519,8 @@ def _constraints(problem: Problem, r: BatchResult, g: SinkGeometry, bad) -> dict
     for d in problem.devices:
         overhang = np.maximum(overhang, d.center_x + d.size_x / 2 - g.width)
         overhang = np.maximum(overhang, d.center_y + d.size_y / 2 - g.length)
-    c["devices_on_base_mm"] = overhang * 1e3
+    # a footprint flush with an edge is on the base: rounding of the mm inputs (1e-15 m) is not
+    c["devices_on_base_mm"] = overhang * 1e3 - 1e-9
     c["airflow"] = np.where(r.no_airflow, 1.0, -1.0)
     if not lim.allow_stall:
         c["fan_stall"] = np.where(r.in_stall, 1.0, -1.0)
