@@ -179,6 +179,29 @@ def _inputs_html(inp: dict[str, Any]) -> str:
     return "\n".join(parts)
 
 
+def _uncertainty_html(unc: dict[str, Any]) -> str:
+    """The uncertain inputs and, when the model is calibrated, the calibration."""
+    parts = ["<h3>Uncertainty</h3>",
+             f'<p class="note">Each Pareto design is evaluated at {unc["samples"]} seeded samples '
+             f"(seed {unc['seed']}) of these inputs, and at the pessimistic corner where every "
+             "input sits at its bound on the hot side; junction margins are judged on the "
+             f"<strong>{html.escape(unc['margin_basis'])}</strong> basis.</p>",
+             _table(["input", "uncertainty", "source of the value"], unc["inputs"], "uncertainty")]
+    cal = unc.get("calibration")
+    if cal:
+        rows = [[k, f"{v:.4g}", "–" if lo is None else f"{lo:.4g} … {hi:.4g}"]
+                for k, v, lo, hi in cal["multipliers"]]
+        parts += ["<h3>Model calibration</h3>",
+                  f'<p class="note">The model runs calibrated on measurements of a prototype '
+                  f"({html.escape(str(cal.get('measured_file') or '?'))}, fitted by sinkopt "
+                  f"calibrate into {html.escape(cal['file'])}): the published correlations "
+                  "times these multipliers. The chart shows the measured points with the model "
+                  "before and after.</p>",
+                  _table(["multiplier", "value", "95 % interval"], rows, "calibration"),
+                  '<div id="calibration-plot" class="plot"></div>']
+    return "\n".join(parts)
+
+
 def _run_html(inp: dict[str, Any]) -> str:
     run = inp["run"]
     versions = ", ".join(f"{k} {v}" for k, v in (run["versions"] or {}).items())
@@ -275,7 +298,7 @@ def render_report(results: Results, info: dict[str, Any] | None = None) -> str:
         "GENERATED": e(generated),
         "SEED": e(_fmt(inp["run"]["seed"])),
         "VERSION": e(_fmt(inp["run"]["sinkopt"])),
-        "INPUTS": _inputs_html(inp),
+        "INPUTS": _inputs_html(inp) + "\n" + _uncertainty_html(data["uncertainty"]),
         "RUN": _run_html(inp),
         "SAFETY": SAFETY_HTML,
         "CSS": _asset("report.css"),

@@ -33,6 +33,8 @@ from sinkopt.model.system import PENALTY, evaluate_params, fan_choices, full_par
 
 __all__ = [
     "OBJECTIVE_LABELS",
+    "BAND_COLUMNS",
+    "uncertainty_data",
     "RESULT_LABELS",
     "objective_axes",
     "trial_points",
@@ -591,6 +593,42 @@ def _common_prefix(texts: Sequence[str]) -> str:
     return prefix[:prefix.rfind(" ") + 1]
 
 
+#: Columns of a design's uncertainty band per device (sinkopt.model.uncertainty.Band.record).
+BAND_COLUMNS = ("nominal_C", "median_C", "p95_C", "p99_C", "pessimistic_C")
+
+
+def uncertainty_data(problem: Problem) -> dict[str, Any]:
+    """The uncertain inputs, the margin basis and the calibration, for the page."""
+    spec = problem.uncertainty
+    labels = {"heat_transfer": "heat transfer coefficient", "pressure_drop": "sink pressure drop",
+              "fan_flow": "fan flow at a given pressure", "power": "device losses",
+              "r_jc": "junction-to-case resistance", "interface": "mounting stack",
+              "ambient": "ambient allowance"}
+    rows = []
+    for k, u in spec.inputs().items():
+        size = (f"{u.size:g} K" if k == "ambient" else f"{100 * u.size:g} %")
+        kind = "1σ, normal clipped at ±2σ" if u.distribution == "normal" else "half-width, uniform"
+        rows.append([labels[k], f"{size} ({kind})", u.source])
+    rows.append(["correlation between the devices' losses", f"{spec.power_correlation:g}", ""])
+    out = {"inputs": rows, "samples": spec.samples, "seed": spec.seed,
+           "margin_basis": problem.limits.margin_basis, "calibration": None}
+    c = problem.calibration
+    if c is not None:
+        pts = list(c.points)
+        def col(key):
+            return [_num(p.get(key)) for p in pts]
+        out["calibration"] = {
+            "file": c.path.name, "measured_file": c.info.get("measured_file"),
+            "multipliers": [[k, v, *(c.intervals.get(k) or (None, None))]
+                            for k, v in c.multipliers.items()],
+            "flow_m3_s": col("flow_m3_s"),
+            "pressure": [col("pressure_drop_Pa"), col("model_before_Pa"), col("model_after_Pa")],
+            "thermal": [col("thermal_resistance_K_per_W"), col("model_before_K_per_W"),
+                        col("model_after_K_per_W")],
+        }
+    return out
+
+
 def design_data(problem: Problem, records: Sequence[dict[str, Any]],
                 fans: dict[str, dict[str, Any]] | None = None, scale: float | None = None,
                 n_system: int = 41) -> dict[str, Any]:
@@ -669,7 +707,22 @@ def design_data(problem: Problem, records: Sequence[dict[str, Any]],
                 models.append(pair)
             diffs = check.get("junction_difference_K") or {}
             spreading = [models.index(pair), [_num(diffs.get(d.name)) for d in problem.devices]]
+        band = r.get("uncertainty")
+        band_data = None
+        if band:
+            band_data = {
+                "p_exceed": _num(band.get("p_exceed")),
+                "corner_margin_K": _num(band.get("pessimistic_margin_K")),
+                "p95_margin_K": _num(band.get("p95_margin_K")),
+                # per device of the study: nominal, median, P95, P99, corner [°C]
+                "devices": [[_num((band["devices"].get(dev.name) or {}).get(c))
+                             for c in BAND_COLUMNS] for dev in problem.devices],
+                "critical": band.get("critical_device"),
+                "sensitivity": [[k, _num(v)] for k, v in list(
+                    (band.get("sensitivity") or {}).items())[:8] if v and v > 0.005],
+            }
         by_trial[str(r["trial"])] = {
+            "band": band_data,
             "feasible": bool(r.get("feasible")),
             "speed_ratio": _num(speeds[k]),
             "key": [_num(r.get(c)) for c in DESIGN_KEYS],
@@ -717,6 +770,10 @@ def _limit_rows(problem: Problem) -> list[list[str]]:
               f"{proc.min_base_thickness_m * 1e3:g} mm"]]
     if problem.air.failed_fan_check:
         rows.append(["one fan stopped", "every junction keeps its margin"])
+    basis = {"nominal": "nominal (the model's central estimate)",
+             "pessimistic": "pessimistic corner: every uncertain input at its hot-side bound",
+             "p95": "5th percentile under the stated uncertainty (first order)"}
+    rows.append(["junction margin basis", basis[lim.margin_basis]])
     return rows
 
 
@@ -822,4 +879,5 @@ def report_data(results: Results, info: dict[str, Any] | None = None) -> dict[st
         "fans": fans,
         "designs": design_data(problem, records, fans),
         "inputs": study_inputs_data(problem, info),
+        "uncertainty": uncertainty_data(problem),
     }

@@ -200,6 +200,21 @@
           name: pareto ? 'Pareto designs' : 'feasible, dominated', marker: m2}));
       }
     });
+    if (!is3d) {  // the uncertainty band as error bars on a junction-margin axis: down to P5
+      traces.forEach(function (t) {
+        if (t.meta !== 'pareto') { return; }
+        [['x', 0], ['y', 1]].forEach(function (a) {
+          if (keys[a[1]] !== 'objective:junction_margin' && keys[a[1]] !== 'numeric:worst_margin_K') { return; }
+          var minus = t.customdata.map(function (trial, k) {
+            var d = DS.by_trial[String(trial)], v = t[a[0]][k];
+            if (!d || !d.band || d.band.p95_margin_K === null || v === null) { return 0; }
+            return Math.max(0, v - d.band.p95_margin_K);
+          });
+          t['error_' + a[0]] = {type: 'data', symmetric: false, array: minus.map(function () { return 0; }),
+                                arrayminus: minus, thickness: 1, width: 0, color: 'rgba(31,35,40,0.35)'};
+        });
+      });
+    }
     if (state.selected !== null) {
       var j = INDEX[state.selected];
       if (j !== undefined && keys.every(function (k) { return axis(k).values[j] !== null; })) {
@@ -530,6 +545,49 @@
       yaxis: axisStyle('temperature rise above inlet air [K]', {rangemode: 'tozero'})})};
   }
 
+  /* ---------- uncertainty band of a design (sinkopt.model.uncertainty) ---------- */
+  function bandFigure(band, devices) {
+    var names = devices.map(function (d) { return esc(d.name); });
+    var col = function (k) { return band.devices.map(function (r) { return r ? r[k] : null; }); };
+    var nominal = col(0), median = col(1), p95 = col(2), p99 = col(3), corner = col(4);
+    var limits = devices.map(function (d) { return d.tj_max_C; });
+    var traces = [
+      {type: 'bar', orientation: 'h', y: names, base: median,
+       x: p99.map(function (v, k) { return v === null || median[k] === null ? null : v - median[k]; }),
+       name: 'median to P99', marker: {color: 'rgba(31,119,180,0.35)'},
+       hovertemplate: '%{y}: median %{base:.4g} °C, P99 %{x:.3g} K above<extra></extra>'},
+      {type: 'scatter', mode: 'markers', y: names, x: nominal, name: 'nominal',
+       marker: {color: '#1f77b4', size: 9}, hovertemplate: '%{y}: nominal %{x:.4g} °C<extra></extra>'},
+      {type: 'scatter', mode: 'markers', y: names, x: p95, name: 'P95',
+       marker: {color: '#1f77b4', symbol: 'line-ns-open', size: 16, line: {width: 2}},
+       hovertemplate: '%{y}: P95 %{x:.4g} °C<extra></extra>'},
+      {type: 'scatter', mode: 'markers', y: names, x: corner, name: 'pessimistic corner',
+       marker: {color: '#d62728', symbol: 'diamond-open', size: 10, line: {width: 2}},
+       hovertemplate: '%{y}: pessimistic corner %{x:.4g} °C<extra></extra>'},
+      {type: 'scatter', mode: 'markers', y: names, x: limits, name: 'Tj,max',
+       marker: {color: WARM, symbol: 'line-ns', size: 22, line: {width: 3, color: WARM}},
+       hovertemplate: '%{y}: limit %{x:.4g} °C<extra></extra>'}];
+    return {data: traces, layout: baseLayout({
+      height: 170 + 34 * names.length, barmode: 'overlay',
+      legend: {orientation: 'h', y: -0.35, x: 0}, margin: {l: 60, r: 20, t: 20, b: 110},
+      yaxis: axisStyle('', {type: 'category', autorange: 'reversed'}),
+      xaxis: axisStyle('junction temperature [°C]')})};
+  }
+
+  function sensitivityFigure(band) {
+    var items = band.sensitivity.slice().reverse();
+    return {data: [{type: 'bar', orientation: 'h',
+                    y: items.map(function (s) { return esc(s[0]); }),
+                    x: items.map(function (s) { return s[1]; }),
+                    marker: {color: '#1f77b4'},
+                    hovertemplate: '%{y}: %{x:.0%} of the variance<extra></extra>'}],
+            layout: baseLayout({height: 110 + 26 * items.length, showlegend: false,
+              margin: {l: 230, r: 20, t: 20, b: 50},
+              xaxis: axisStyle('share of the junction-temperature variance (first order)',
+                               {range: [0, 1], tickformat: '.0%'}),
+              yaxis: axisStyle('', {type: 'category'})})};
+  }
+
   /* ---------- drawings: report_data.sink_drawing, in the browser ---------- */
   /* Python's format(v, '.<d>g'). */
   function gfmt(v, d) {
@@ -842,6 +900,53 @@
     wrap.appendChild(dt);
     panel.appendChild(wrap);
 
+    if (d.band) {
+      var U = D.uncertainty || {};
+      panel.appendChild(el('h4', null, 'Uncertainty band'));
+      panel.appendChild(el('p', {'class': 'note', id: 'band-summary'},
+        'Every uncertain input carried through the model, fan point included (' + U.samples +
+        ' seeded samples, seed ' + U.seed + '; inputs listed under Study inputs). Probability ' +
+        'that a junction exceeds its limit: ' + fmt(100 * d.band.p_exceed, 3) + ' %. Worst margin: ' +
+        fmt(d.band.p95_margin_K, 3) + ' K at the 5th percentile, ' + fmt(d.band.corner_margin_K, 3) +
+        ' K at the pessimistic corner.' + (d.band.critical ? ' Ranked on ' + d.band.critical +
+        ', the device with the least nominal margin.' : '')));
+      var bgrid = el('div', {'class': 'grid2'});
+      var b1 = el('figure');
+      b1.appendChild(el('figcaption', null, 'Junction temperatures: nominal, median to P99, P95, pessimistic corner'));
+      var bb = el('div', {id: 'band-plot', 'class': 'plot'});
+      b1.appendChild(bb);
+      var b2 = el('figure');
+      b2.appendChild(el('figcaption', null, 'What to measure first: the inputs behind the spread'));
+      var sb = el('div', {id: 'sensitivity-plot', 'class': 'plot'});
+      b2.appendChild(sb);
+      bgrid.appendChild(b1);
+      bgrid.appendChild(b2);
+      panel.appendChild(bgrid);
+      var brows = devices.map(function (dv, k) {
+        var r = d.band.devices[k] || [];
+        return [dv.name, r[0], r[1], r[2], r[3], r[4], dv.tj_max_C];
+      });
+      var bt = table(['device', 'nominal [°C]', 'median [°C]', 'P95 [°C]', 'P99 [°C]',
+                      'pessimistic [°C]', 'Tj,max [°C]'], brows, 'band');
+      bt.id = 'design-band';
+      var bw = el('div', {'class': 'scroll'});
+      bw.appendChild(bt);
+      panel.appendChild(bw);
+      var drawBand = function () {
+        if (!bb.isConnected) { return; }
+        bb.replaceChildren();
+        sb.replaceChildren();
+        if (HAVE_PLOTLY) {
+          var f = bandFigure(d.band, devices), g = sensitivityFigure(d.band);
+          Plotly.newPlot(bb, f.data, f.layout, CONFIG);
+          Plotly.newPlot(sb, g.data, g.layout, CONFIG);
+        } else {
+          bb.appendChild(el('p', {'class': 'hint'}, NO_PLOTLY + '.'));
+        }
+      };
+      if (plotlyState === 'loading') { plotlyReady.then(drawBand); } else { drawBand(); }
+    }
+
     panel.appendChild(el('h4', null, 'Warnings'));
     if (d.warnings.length) {
       var ul = el('ul', {'class': 'warnings'});
@@ -1018,7 +1123,37 @@
     box.hidden = false;
   });
   setupControls();
+  /* ---------- the calibration: measured points, the model before and after ---------- */
+  function setupCalibration() {
+    var cal = (D.uncertainty || {}).calibration, box = document.getElementById('calibration-plot');
+    if (!cal || !box || !HAVE_PLOTLY) { return; }
+    var q = cal.flow_m3_s.map(function (v) { return v === null ? null : v * 3600; });
+    var traces = [];
+    [['pressure', 'pressure drop [Pa]', 'x', 'y'], ['thermal', 'thermal resistance [K/W]', 'x2', 'y2']]
+      .forEach(function (kind) {
+        var cols = cal[kind[0]];
+        var keep = q.map(function (_, k) { return k; }).filter(function (k) { return cols[0][k] !== null; });
+        if (!keep.length) { return; }
+        keep.sort(function (a, b) { return q[a] - q[b]; });
+        var pick = function (c) { return keep.map(function (k) { return c[k]; }); };
+        var xs = pick(q);
+        traces.push({type: 'scatter', mode: 'markers', x: xs, y: pick(cols[0]), xaxis: kind[2], yaxis: kind[3],
+                     name: 'measured', legendgroup: 'm', showlegend: kind[0] === 'pressure',
+                     marker: {color: '#1f2328', size: 8}});
+        traces.push({type: 'scatter', mode: 'lines', x: xs, y: pick(cols[1]), xaxis: kind[2], yaxis: kind[3],
+                     name: 'published correlations', legendgroup: 'b', showlegend: kind[0] === 'pressure',
+                     line: {color: '#a3a8ae', dash: 'dash'}});
+        traces.push({type: 'scatter', mode: 'lines', x: xs, y: pick(cols[2]), xaxis: kind[2], yaxis: kind[3],
+                     name: 'calibrated', legendgroup: 'a', showlegend: kind[0] === 'pressure',
+                     line: {color: '#1f77b4'}});
+      });
+    Plotly.newPlot(box, traces, baseLayout({height: 320, grid: {rows: 1, columns: 2, pattern: 'independent'},
+      xaxis: axisStyle('flow [m³/h]'), yaxis: axisStyle('pressure drop [Pa]'),
+      xaxis2: axisStyle('flow [m³/h]'), yaxis2: axisStyle('thermal resistance [K/W]')}), CONFIG);
+  }
+
   setupTable();
+  plotlyReady.then(setupCalibration).catch(function () {});
   plotlyReady.then(setupFront).then(function () {
     var m = /^#trial-(\d+)$/.exec(window.location.hash);
     if (m) { showDesign(Number(m[1]), true); }
