@@ -172,6 +172,14 @@ def describe_problem(problem) -> list[str]:
             out.append(f"  {name.removeprefix('max_').rsplit('_', 1)[0].replace('_', ' ')} "
                        f"<= {v:g} {unit}")
     out.append(f"  fan stall {'allowed' if lim.allow_stall else 'not allowed'}")
+    out.append(f"  junction margin basis: {lim.margin_basis}")
+    spec = problem.uncertainty
+    out += ["", f"uncertainty ({spec.samples} samples, seed {spec.seed}; the band of every Pareto "
+                "design):"]
+    for k, u in spec.inputs().items():
+        size = f"{u.size:g} K" if k == "ambient" else f"{100 * u.size:g} %"
+        out.append(f"  {k:<14} {size} {u.distribution}")
+    out.append(f"  power_correlation {spec.power_correlation:g}")
     o = problem.options
     out += ["", f"model: heat_transfer {o.heat_transfer}, hydraulic_diameter "
                 f"{o.hydraulic_diameter}, exit_loss {o.exit_loss}, fin_tip {o.fin_tip}, "
