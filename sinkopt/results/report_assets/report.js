@@ -799,6 +799,20 @@
     if (history.replaceState) { history.replaceState(null, '', '#trial-' + trial); }
   }
 
+  /* Two captioned plot boxes side by side in ``panel``; returns the boxes. */
+  function figurePair(panel, left, right) {
+    var grid = el('div', {'class': 'grid2'}), boxes = [];
+    [left, right].forEach(function (spec) {
+      var fig = el('figure'), box = el('div', {id: spec[1], 'class': 'plot'});
+      fig.appendChild(el('figcaption', null, spec[0]));
+      fig.appendChild(box);
+      grid.appendChild(fig);
+      boxes.push(box);
+    });
+    panel.appendChild(grid);
+    return boxes;
+  }
+
   function renderDesign(panel, trial) {
     var d = DS.by_trial[String(trial)], i = INDEX[trial], fan = fanOf(i);
     var devices = designDevices(trial);
@@ -847,21 +861,12 @@
     panel.appendChild(drawings);
 
     var curves = designCurves(trial);
-    var grid = el('div', {'class': 'grid2'});
-    var c1 = el('figure');
-    c1.appendChild(el('figcaption', null, curves.fan_curve ?
+    var pair = figurePair(panel, [curves.fan_curve ?
       'Fans against the system, at the site air density' + (curves.name ? ' (' + curves.name +
         (curves.count > 1 ? ', ' + curves.count + ' in ' + curves.arrangement : '') + ')' : '') :
-      'System curve and the given airflow, at the site air density'));
-    var fs = el('div', {id: 'fan-system', 'class': 'plot'});
-    c1.appendChild(fs);
-    var c2 = el('figure');
-    c2.appendChild(el('figcaption', null, 'Temperature rise from the inlet air to each junction'));
-    var bd = el('div', {id: 'breakdown', 'class': 'plot'});
-    c2.appendChild(bd);
-    grid.appendChild(c1);
-    grid.appendChild(c2);
-    panel.appendChild(grid);
+      'System curve and the given airflow, at the site air density', 'fan-system'],
+      ['Temperature rise from the inlet air to each junction', 'breakdown']);
+    var fs = pair[0], bd = pair[1];
     function drawFigures() {
       if (!fs.isConnected) { return; }  // another design was opened meanwhile
       fs.replaceChildren();
@@ -910,18 +915,10 @@
         fmt(d.band.p95_margin_K, 3) + ' K at the 5th percentile, ' + fmt(d.band.corner_margin_K, 3) +
         ' K at the pessimistic corner.' + (d.band.critical ? ' Ranked on ' + d.band.critical +
         ', the device with the least nominal margin.' : '')));
-      var bgrid = el('div', {'class': 'grid2'});
-      var b1 = el('figure');
-      b1.appendChild(el('figcaption', null, 'Junction temperatures: nominal, median to P99, P95, pessimistic corner'));
-      var bb = el('div', {id: 'band-plot', 'class': 'plot'});
-      b1.appendChild(bb);
-      var b2 = el('figure');
-      b2.appendChild(el('figcaption', null, 'What to measure first: the inputs behind the spread'));
-      var sb = el('div', {id: 'sensitivity-plot', 'class': 'plot'});
-      b2.appendChild(sb);
-      bgrid.appendChild(b1);
-      bgrid.appendChild(b2);
-      panel.appendChild(bgrid);
+      var bpair = figurePair(panel,
+        ['Junction temperatures: nominal, median to P99, P95, pessimistic corner', 'band-plot'],
+        ['What to measure first: the inputs behind the spread', 'sensitivity-plot']);
+      var bb = bpair[0], sb = bpair[1];
       var brows = devices.map(function (dv, k) {
         var r = d.band.devices[k] || [];
         return [dv.name, r[0], r[1], r[2], r[3], r[4], dv.tj_max_C];
