@@ -32,6 +32,7 @@ class Material:
     conductivity: float  #: [W/(m K)]
     density: float  #: [kg/m^3]
     note: str = ""
+    specific_heat: float = 900.0  #: [J/(kg K)]
 
 
 @dataclass(frozen=True)
@@ -51,7 +52,8 @@ def _rows(path: Traversable):
 def materials() -> dict[str, Material]:
     """All sink materials by name."""
     return {r["name"]: Material(r["name"], float(r["conductivity_W_per_mK"]),
-                                float(r["density_kg_per_m3"]), r.get("note", ""))
+                                float(r["density_kg_per_m3"]), r.get("note", ""),
+                                float(r.get("specific_heat_J_per_kgK") or 900.0))
             for r in _rows(builtin_catalog() / "materials.csv")}
 
 
