@@ -36,6 +36,21 @@ REGISTRY: tuple[Correlation, ...] = (
                 "Song, Lee & Au 1994: source smaller than the base", "uses_fast_spreading"),
     Correlation("air_properties_in_tool", "air_temperature_K", 233.15, 373.15,
                 "Sutherland fits checked against CoolProp 0-80 °C (docs/theory.md#air-properties)", "always"),
+    # Natural convection (sinkopt.physics.natural_convection); inert until the model provides
+    # these quantities and flags.
+    Correlation("nu_vertical_channel_bar_cohen_rohsenow_1984", "elenbaas_number", 0.1, 1e5,
+                "Bar-Cohen & Rohsenow 1984, Elenbaas 1942 data (range from memory)",
+                "uses_natural_fins_vertical"),
+    Correlation("natural_convection_channel_laminar", "rayleigh_channel_length", 0.0, 1e9,
+                "laminar vertical plate Ra_L <= 1e9, Bergman et al. 2011 §9.6",
+                "uses_natural_fins_vertical"),
+    Correlation("nu_vertical_plate_churchill_chu_1975", "rayleigh_vertical_plate", 0.1, 1e12,
+                "Churchill & Chu 1975", "uses_natural_convection"),
+    Correlation("nu_horizontal_plate_up_mcadams_1954", "rayleigh_horizontal_plate", 1e4, 1e11,
+                "McAdams 1954, Bergman et al. 2011 eqs 9.30-9.31", "uses_natural_face_up"),
+    Correlation("nu_horizontal_plate_down_mcadams_1954", "rayleigh_horizontal_plate", 1e5, 1e10,
+                "McAdams 1954, Bergman et al. 6th ed. eq 9.32 (from memory)",
+                "uses_natural_face_down"),
 )
 
 
