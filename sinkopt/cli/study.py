@@ -138,6 +138,11 @@ def cmd_evaluate(args) -> int:
     result = evaluate_params(problem, [params], spreading=args.spreading)
     rec = design_record(problem, result, 0)
     rec["failed_constraints"] = failed_constraints(rec)
+    if problem.still_air is not None:
+        from sinkopt.model.fans_stopped import fans_stopped_of
+
+        rec["fans_stopped"] = fans_stopped_of(problem, [params], result).record(
+            0, [d.name for d in problem.devices])
     if args.json:
         json.dump(rec, sys.stdout, indent=2, allow_nan=False)
         sys.stdout.write("\n")
@@ -170,6 +175,15 @@ def _print_design(rec: dict) -> None:
     for d in rec["devices"]:
         print(f"    {d['name']:<16} Tj {_fmt(d['junction_C'], '°C')}  margin {_fmt(d['margin_K'], 'K')}"
               f"  (limit {d['tj_max_C']} °C, mounting {d['mounting']})")
+    still = rec.get("fans_stopped")
+    if still:
+        t = still["time_to_limit_after_fan_stop_s"]
+        print(f"  fans stopped        at {100 * still['load_fraction']:g} % load: Tj "
+              + ", ".join(f"{k} {_fmt(v, '°C')}" for k, v in still["steady_junction_C"].items()))
+        print(f"                      largest load with no airflow "
+              f"{100 * still['largest_load_fraction']:.3g} %; after a fan stop at full load "
+              + ("no junction reaches its limit" if t is None else
+                 f"{still['first_device_at_limit']} reaches its limit in {t:.4g} s"))
     failing = failed_constraints(rec)
     if failing:
         print("  fails: " + "; ".join(failing))

@@ -171,6 +171,19 @@ class Limits:
 
 
 @dataclass(frozen=True)
+class StillAir:
+    """The fans-stopped checks (``[fans_stopped]``): the sink in still air."""
+
+    orientation: str  #: sinkopt.physics.natural_convection.ORIENTATIONS
+    emissivity: float  #: of the sink's surface [-]
+    finish: str = ""
+    load_fraction: float = 1.0  #: load of the fans-stopped steady state [-]
+    back_exposed: bool = False  #: the back of the base sees the air
+    tau_jc_s: float = 0.5  #: junction-to-case time constant of every device [s]
+    horizon_s: float = 3600.0  #: how long after a fan stop is followed [s]
+
+
+@dataclass(frozen=True)
 class Problem:
     name: str
     conditions: Conditions
@@ -194,6 +207,9 @@ class Problem:
     calibration: "Calibration | None" = None
     #: The uncertain inputs (``[uncertainty]``): the band of every Pareto design, robust search.
     uncertainty: UncertaintySpec = DEFAULT_UNCERTAINTY
+    #: The fans-stopped checks (``[fans_stopped]``), or None.
+    still_air: StillAir | None = None
+    specific_heat: float = 900.0  #: sink material [J/(kg K)]
 
     @property
     def slug(self) -> str:

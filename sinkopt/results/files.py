@@ -159,6 +159,12 @@ def pareto_frame(results: Results):
             ranked = list(band["sensitivity"].items())
             row["dominant_input"] = (f"{ranked[0][0]} ({ranked[0][1]:.0%})"
                                      if ranked and ranked[0][1] > 0 else "")
+        still = rec.get("fans_stopped")
+        if still:
+            row["fan_stop_time_to_limit_s"] = still["time_to_limit_after_fan_stop_s"]
+            row["still_air_largest_load_fraction"] = still["largest_load_fraction"]
+            for name, v in still["steady_junction_C"].items():
+                row[f"tj_{name}_fans_stopped_C"] = v
         diffs = rec.get("spreading_check", {}).get("junction_difference_K", {})
         if diffs:
             vals = [abs(v) for v in diffs.values() if v is not None]

@@ -721,8 +721,24 @@ def design_data(problem: Problem, records: Sequence[dict[str, Any]],
                 "sensitivity": [[k, _num(v)] for k, v in list(
                     (band.get("sensitivity") or {}).items())[:8] if v and v > 0.005],
             }
+        still = r.get("fans_stopped")
+        still_data = None
+        if still:
+            tr = still["fan_stop_trace"]
+            keep = slice(None, None, 3)  # every third step of the event: the curve's shape
+            still_data = {
+                "load_fraction": still["load_fraction"],
+                "steady_C": [_num(still["steady_junction_C"].get(d.name)) for d in problem.devices],
+                "largest_load": _num(still["largest_load_fraction"]),
+                "time_to_limit_s": _num(still["time_to_limit_after_fan_stop_s"]),
+                "first": still["first_device_at_limit"],
+                "t_s": [_num(v) for v in tr["time_s"][keep]],
+                "tj_C": [[_num(v) for v in tr["junction_C"][d.name][keep]]
+                         for d in problem.devices],
+            }
         by_trial[str(r["trial"])] = {
             "band": band_data,
+            "still": still_data,
             "feasible": bool(r.get("feasible")),
             "speed_ratio": _num(speeds[k]),
             "key": [_num(r.get(c)) for c in DESIGN_KEYS],

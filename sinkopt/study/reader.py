@@ -31,12 +31,15 @@ from pathlib import Path
 from sinkopt.model.calibration import apply_multipliers
 from sinkopt.model.uncertainty_spec import (DEFAULT_UNCERTAINTY, DISTRIBUTIONS, MARGIN_BASES,
                                             InputUncertainty, UncertaintySpec)
+from sinkopt.physics.natural_convection import ORIENTATIONS
+from sinkopt.physics.radiation import EMISSIVITY
 from sinkopt.study import catalogs
 from sinkopt.study.calibration_file import read_calibration
 from sinkopt.model.design import Conditions, Device, ModelOptions, MountingStack, SlabLayer, ViaLayer
 from sinkopt.errors import InputError
 from sinkopt.model.problem import (DEFAULT_SAMPLER, GEOMETRY_VARIABLES, OBJECTIVES, SAMPLERS, AirSupply,
-                             FanOption, Limits, Problem, ProcessLimits, Variable, fan_label)
+                             FanOption, Limits, Problem, ProcessLimits, StillAir, Variable,
+                             fan_label)
 from sinkopt.study.schema import (PROCESS_KEYS, PROCESS_PRESETS, Problems, Table, cross_check,
                                   item_path, join_path, read_impedance_curve, resolve_files, show,
                                   span)
@@ -45,7 +48,7 @@ __all__ = ["load_study", "parse_study", "fan_label", "fan_choices", "fan_speed_r
            "mount_variable", "SAMPLERS", "SECTIONS", "FAN_SPEED_MAX"]
 
 SECTIONS = ("study", "ambient", "device", "sink", "air", "objectives", "constraints", "model",
-            "uncertainty")
+            "uncertainty", "fans_stopped")
 #: Highest allowed fan speed, as a fraction of the rated speed (fan laws beyond the data).
 FAN_SPEED_MAX = 1.2
 #: Default junction margin [K]: common practice is 10-25 K below tj_max (common practice, no source).
@@ -530,6 +533,38 @@ _UNCERTAIN_INPUTS = ("heat_transfer", "pressure_drop", "fan_flow", "power", "r_j
 _UNCERTAINTY_KEYS = (*_UNCERTAIN_INPUTS, "ambient_K", "power_correlation", "samples", "seed")
 
 
+_STILL_AIR_KEYS = ("orientation", "finish", "emissivity", "load_fraction", "back_exposed",
+                   "tau_jc_s", "horizon_s")
+
+
+def _still_air(root: Table):
+    """The ``[fans_stopped]`` table: the sink in still air (None when the table is absent)."""
+    data = root.table("fans_stopped")
+    if data is None:
+        return None, True
+    t = Table(data, "fans_stopped", root.problems, _STILL_AIR_KEYS)
+    orientation = t.text("orientation", required=True, choices=ORIENTATIONS,
+                         hint="how the sink hangs with the fans stopped: "
+                              + ", ".join(ORIENTATIONS))
+    finish = t.text("finish", default=None, choices=tuple(EMISSIVITY))
+    emissivity = t.number("emissivity", "-", minimum=0, exclusive=True, maximum=1)
+    if finish is not None and emissivity is not None:
+        t.add("emissivity", "give finish or emissivity, not both")
+        return None, False
+    if emissivity is None and "emissivity" not in data:
+        emissivity = EMISSIVITY[finish or "anodised"]
+    kw = dict(
+        load_fraction=t.number("load_fraction", "-", default=1.0, minimum=0, exclusive=True,
+                               maximum=1),
+        back_exposed=t.boolean("back_exposed", default=False),
+        tau_jc_s=t.number("tau_jc_s", "s", default=0.5, minimum=0, exclusive=True),
+        horizon_s=t.number("horizon_s", "s", default=3600.0, minimum=1, maximum=1e6))
+    if None in (orientation, emissivity) or None in kw.values():
+        return None, False
+    return StillAir(orientation, emissivity, finish or ("" if "emissivity" in data
+                                                        else "anodised"), **kw), True
+
+
 def _uncertainty(root: Table):
     """The ``[uncertainty]`` table over the defaults (sinkopt.model.uncertainty_spec)."""
     data = root.table("uncertainty") or {}
@@ -642,6 +677,7 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
     limits = _constraints(root)
     options, calibration = _model(root, base_dir, inputs)
     uncertainty = _uncertainty(root)
+    still_air, _ = _still_air(root)
     cross_check(problems, sink, devices, air, objectives, limits, ambient)
     problems.raise_if_any()
 
@@ -678,6 +714,8 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
         inputs=tuple(inputs),
         calibration=calibration,
         uncertainty=uncertainty,
+        still_air=still_air,
+        specific_heat=material.specific_heat,
     )
 
 

@@ -944,6 +944,46 @@
       if (plotlyState === 'loading') { plotlyReady.then(drawBand); } else { drawBand(); }
     }
 
+    if (d.still) {
+      var st = d.still;
+      panel.appendChild(el('h4', null, 'When the fans stop'));
+      panel.appendChild(el('p', {'class': 'note', id: 'still-summary'},
+        'Still air (natural convection and radiation). After every fan stops at full load, ' +
+        (st.time_to_limit_s === null ? 'no junction reaches its limit.' :
+          st.first + ' reaches its limit after ' + fmt(st.time_to_limit_s, 3) + ' s: derate or ' +
+          'shut down before then.') + ' With no airflow the sink carries at most ' +
+        fmt(100 * st.largest_load, 3) + ' % of the load.'));
+      var srows = devices.map(function (dv, k) {
+        return [dv.name, fmt(100 * st.load_fraction, 3) + ' %', st.steady_C[k], dv.tj_max_C];
+      });
+      var stt = table(['device', 'load', 'Tj, fans stopped [°C]', 'Tj,max [°C]'], srows, 'still');
+      stt.id = 'design-still';
+      var sw = el('div', {'class': 'scroll'});
+      sw.appendChild(stt);
+      panel.appendChild(sw);
+      var sfig = el('figure');
+      sfig.appendChild(el('figcaption', null, 'Junction temperatures after a fan stop at full load (t = 0)'));
+      var sbox = el('div', {id: 'fan-stop-plot', 'class': 'plot'});
+      sfig.appendChild(sbox);
+      panel.appendChild(sfig);
+      var drawStill = function () {
+        if (!sbox.isConnected || !HAVE_PLOTLY) { return; }
+        var t = st.t_s.map(function (v) { return Math.max(v, 0.01); });
+        var traces = devices.map(function (dv, k) {
+          return {type: 'scatter', mode: 'lines', x: t, y: st.tj_C[k], name: esc(dv.name),
+                  line: {color: PALETTE[k % PALETTE.length]},
+                  hovertemplate: '%{x:.3g} s: %{y:.4g} °C<extra>' + esc(dv.name) + '</extra>'};
+        });
+        traces.push({type: 'scatter', mode: 'lines', x: [t[0], t[t.length - 1]],
+                     y: [devices[0].tj_max_C, devices[0].tj_max_C], name: 'Tj,max (' + esc(devices[0].name) + ')',
+                     line: {color: WARM, dash: 'dash'}});
+        Plotly.newPlot(sbox, traces, baseLayout({height: 320,
+          xaxis: axisStyle('time after the fan stop [s]', {type: 'log'}),
+          yaxis: axisStyle('junction temperature [°C]')}), CONFIG);
+      };
+      if (plotlyState === 'loading') { plotlyReady.then(drawStill); } else { drawStill(); }
+    }
+
     panel.appendChild(el('h4', null, 'Warnings'));
     if (d.warnings.length) {
       var ul = el('ul', {'class': 'warnings'});
