@@ -38,14 +38,20 @@ def password_of(url: str) -> str:
     return urlsplit(url).password or ""
 
 
-def write_study(folder: Path, name: str | None = None) -> Path:
-    """The demo study under a unique name (the study's name in the storage), fan files absolute."""
+def write_study(folder: Path, name: str | None = None, slow: bool = False) -> Path:
+    """The demo study under a unique name (the study's name in the storage), fan files absolute.
+
+    ``slow``: every design on a 2000-term spreading series (about 0.1 s a design), so that a
+    run is still working when a test wants to interrupt it, however loaded the machine."""
     name = name or f"dist-{uuid.uuid4().hex[:10]}"
     text = DEMO.read_text(encoding="utf-8")
     text = re.sub(r'(?m)^name = "demo inverter"', f'name = "{name}"', text, count=1)
     fans = (ROOT / "catalogs" / "fans").as_posix()
     text = text.replace('"../catalogs/fans/*.csv"', f'"{fans}/*.csv"')
     assert f'name = "{name}"' in text and "../catalogs" not in text
+    if slow:
+        text += '\n[model]\nspreading = "exact"\nseries_terms = 2000\n'
+    
     path = folder / f"{name}.toml"
     path.write_text(text, encoding="utf-8")
     return path

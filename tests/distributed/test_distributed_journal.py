@@ -3,6 +3,7 @@ one worker killed with SIGKILL part-way, the other and the parent finish the stu
 the parent stops every worker and leaves nothing RUNNING."""
 from __future__ import annotations
 
+import contextlib
 import json
 import os
 import signal
@@ -44,7 +45,7 @@ def _worker_pids(study, parent_pid: int) -> set[int]:
 
 @pytest.mark.slow
 def test_run_with_two_workers_one_killed(tmp_path):
-    study_file = write_study(tmp_path)
+    study_file = write_study(tmp_path, slow=True)  # a worker is caught holding trials
     problem = load_study(study_file)
     out = tmp_path / "results"
     journal = out / "study.journal"
@@ -93,15 +94,14 @@ def test_run_with_two_workers_one_killed(tmp_path):
 
 @pytest.mark.slow
 def test_interrupting_the_parent_stops_every_worker(tmp_path):
-    study_file = write_study(tmp_path)
+    study_file = write_study(tmp_path, slow=True)
     problem = load_study(study_file)
     out = tmp_path / "results"
     journal = out / "study.journal"
     parent = subprocess.Popen(
-        # far more trials than can finish before the test interrupts it, however slowly the
-        # test reads the journal: the run is still going when the signal comes (an event, not
-        # a race with the clock)
-        sinkopt_cmd("run", str(study_file), "--workers", "2", "--trials", "100000000",
+        # slow designs and far more trials than can finish before the test interrupts it: the
+        # run is still going when the signal comes (an event, not a race with the clock)
+        sinkopt_cmd("run", str(study_file), "--workers", "2", "--trials", "100000",
                     "--sampler", "random", "--out", str(out), "--no-progress", "--no-report"),
         stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
     try:
@@ -120,6 +120,10 @@ def test_interrupting_the_parent_stops_every_worker(tmp_path):
         if parent.poll() is None:
             parent.kill()
             parent.communicate()
+        for pid in _worker_pids(_reader(journal, problem.name)(), parent.pid) \
+                if journal.is_file() else []:  # never leave a worker behind a failed test
+            with contextlib.suppress(ProcessLookupError):
+                os.kill(pid, signal.SIGKILL)
     assert parent.returncode == 130, stderr
     for pid in workers:  # every worker is gone (and reaped by the parent)
         with pytest.raises(ProcessLookupError):
@@ -128,7 +132,7 @@ def test_interrupting_the_parent_stops_every_worker(tmp_path):
     states = {t.state for t in study.get_trials(deepcopy=False)}
     assert TrialState.RUNNING not in states
     n_complete = complete_count(study)
-    assert 0 < n_complete < 100000000
+    assert 0 < n_complete < 100000
     info = json.loads((out / "run.json").read_text())
     assert info["trial_states"]["COMPLETE"] == n_complete
     assert sum(info["trial_states"].values()) == len(study.trials)
