@@ -216,7 +216,7 @@ STARTER_STUDY = """\
 name = "starter"
 trials = 300
 seed = 1
-sampler = "tpe"
+sampler = "tpe-refine"   # the default search scheme (docs/study-file.md lists the others)
 
 [ambient]
 temperature_C = 40   # worst-case inlet air
