@@ -73,3 +73,17 @@ def test_run_into_a_file_is_an_input_error(tmp_path, capsys):
     assert main(["run", str(DEMO), "--out", str(f), "--trials", "8", "--no-progress"]) == 2
     assert "is a file, not a folder" in capsys.readouterr().err
     assert f.read_text() == "x"
+
+
+def test_no_feasible_design_still_writes_a_readable_pareto_csv(tmp_path, capsys):
+    import pandas as pd
+
+    text = DEMO.read_text().replace("../catalogs/", str(ROOT / "catalogs") + "/")
+    text = text.replace("min_junction_margin_K = 10", "min_junction_margin_K = 140")
+    study = tmp_path / "hard.toml"
+    study.write_text(text)
+    out = tmp_path / "o"
+    assert main(["run", str(study), "--out", str(out), "--trials", "16", "--seed", "1",
+                 "--no-progress", "--no-report"]) == 3
+    front = pd.read_csv(out / "pareto.csv")
+    assert len(front) == 0 and {"trial", "width_mm", "worst_margin_K"} <= set(front.columns)

@@ -171,6 +171,14 @@ def pareto_frame(results: Results):
             row["search_model_error_K"] = max(vals) if vals else None
         row["warnings"] = "; ".join(rec["warnings"])
         rows.append(row)
+    if not rows:  # no feasible design: the header still says what the columns would be
+        problem = results.problem
+        names = [v.name for v in problem.variables]
+        keys = ["feasible", "fan", "speed_ratio", "airflow_m3_s", "pressure_drop_Pa",
+                "fan_power_W", "volume_cm3", "mass_kg", "worst_margin_K"]
+        devices = [f"{kind}_{d.name}_{unit}" for d in problem.devices
+                   for kind, unit in (("tj", "C"), ("margin", "K"))]
+        return pd.DataFrame(columns=["trial", *names, *keys, *devices, "warnings"])
     return pd.DataFrame(rows)
 
 
