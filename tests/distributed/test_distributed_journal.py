@@ -8,6 +8,7 @@ import json
 import os
 import signal
 import subprocess
+from pathlib import Path
 
 import optuna
 import pandas as pd
@@ -32,6 +33,19 @@ def _reader(journal, name):
             storage.append(JournalStorage(JournalFileBackend(str(journal))))
         return optuna.load_study(study_name=name, storage=storage[0])
     return read
+
+
+def _kill_own_workers(pids, study_file) -> None:
+    """SIGKILL the pids that are still workers of this test's study (a pid of a worker that has
+    exited may already belong to another process: its command line is checked first)."""
+    for pid in pids:
+        try:
+            cmdline = Path(f"/proc/{pid}/cmdline").read_bytes()
+        except OSError:
+            continue
+        if b"worker" in cmdline and str(study_file).encode() in cmdline:
+            with contextlib.suppress(ProcessLookupError):
+                os.kill(pid, signal.SIGKILL)
 
 
 def _worker_pids(study, parent_pid: int) -> set[int]:
@@ -120,10 +134,9 @@ def test_interrupting_the_parent_stops_every_worker(tmp_path):
         if parent.poll() is None:
             parent.kill()
             parent.communicate()
-        for pid in _worker_pids(_reader(journal, problem.name)(), parent.pid) \
-                if journal.is_file() else []:  # never leave a worker behind a failed test
-            with contextlib.suppress(ProcessLookupError):
-                os.kill(pid, signal.SIGKILL)
+            if journal.is_file():  # never leave a worker behind a failed test
+                _kill_own_workers(_worker_pids(_reader(journal, problem.name)(), parent.pid),
+                                  study_file)
     assert parent.returncode == 130, stderr
     for pid in workers:  # every worker is gone (and reaped by the parent)
         with pytest.raises(ProcessLookupError):
