@@ -140,7 +140,9 @@ def test_interrupt_saves_results_and_exits_130(tmp_path):
     out = tmp_path / "run"
     cmd = [sys.executable, "-m", "sinkopt", "run", str(DEMO), "--out", str(out), "--trials", "2000",
            "--seed", "1", "--no-progress", "--no-report"]
-    proc = subprocess.Popen(cmd, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    # SIGINT back to its default in the child: a test run started in the background ignores it
+    proc = subprocess.Popen(cmd, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
+                            preexec_fn=lambda: signal.signal(signal.SIGINT, signal.SIG_DFL))
     journal = out / "study.journal"
     deadline = time.monotonic() + 300  # wait for the event (trials written), however slow
     while not (journal.exists() and journal.stat().st_size > 20000):

@@ -57,6 +57,13 @@ def write_study(folder: Path, name: str | None = None, slow: bool = False) -> Pa
     return path
 
 
+def default_sigint() -> None:
+    """``preexec_fn`` of a child the test will interrupt: SIGINT back to its default. A test run
+    started in the background (nohup, some CI runners) ignores SIGINT, and a child would
+    inherit that and never see the test's Ctrl-C."""
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
+
+
 def sinkopt_cmd(*args: str) -> list[str]:
     return [sys.executable, "-m", "sinkopt", *args]
 

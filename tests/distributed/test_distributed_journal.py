@@ -18,7 +18,7 @@ from optuna.trial import TrialState
 
 from sinkopt.study.reader import load_study
 
-from dist_helpers import (check_study_sound, complete_count, kill_holding_trials,
+from dist_helpers import (default_sigint, check_study_sound, complete_count, kill_holding_trials,
                           recomputed_front, sinkopt_cmd, wait_until, write_study)
 
 N_TRIALS = 64
@@ -67,7 +67,7 @@ def test_run_with_two_workers_one_killed(tmp_path):
         sinkopt_cmd("run", str(study_file), "--workers", "2", "--trials", str(N_TRIALS),
                     "--seed", "5", "--sampler", "tpe", "--batch", str(BATCH), "--out", str(out),
                     "--no-progress", "--no-report"),
-        stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+        stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, preexec_fn=default_sigint)
     try:
         wait_until(lambda: journal.is_file() and journal.stat().st_size > 0, 300,
                    "the parent to create the study", procs=[parent])
@@ -117,7 +117,7 @@ def test_interrupting_the_parent_stops_every_worker(tmp_path):
         # run is still going when the signal comes (an event, not a race with the clock)
         sinkopt_cmd("run", str(study_file), "--workers", "2", "--trials", "100000",
                     "--sampler", "random", "--out", str(out), "--no-progress", "--no-report"),
-        stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+        stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, preexec_fn=default_sigint)
     try:
         wait_until(lambda: journal.is_file() and journal.stat().st_size > 0, 300,
                    "the parent to create the study", procs=[parent])
