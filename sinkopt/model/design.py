@@ -121,6 +121,10 @@ class Device:
     size_x: float  #: footprint across the flow [m]
     size_y: float  #: footprint along the flow [m]
     stacks: tuple[MountingStack, ...] = field(default_factory=tuple)
+    #: Junction-to-case transient impedance as a Foster network (R_i [K/W], τ_i [s]) from the
+    #: datasheet's Z_th curve; empty: a single time constant (docs/theory.md#transient-thermal-networks).
+    foster_r: tuple[float, ...] = ()
+    foster_tau: tuple[float, ...] = ()
 
 
 @dataclass(frozen=True)

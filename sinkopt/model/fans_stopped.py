@@ -13,12 +13,13 @@ import numpy as np
 from sinkopt.model.design import SinkGeometry
 from sinkopt.model.known_flow import ZERO_C, stack_resistances
 from sinkopt.model.problem import Problem
-from sinkopt.model.system import BatchResult, _geometry, _stack_choice, to_columns
+from sinkopt.model.thermal_network import device_network, running_state
+from sinkopt.model.columns import geometry_of, stack_choice, to_columns
 from sinkopt.physics import spreading as sp
 from sinkopt.physics.air import pressure_standard_atmosphere_1976
 from sinkopt.physics.natural_convection import sink_natural_convection
 from sinkopt.physics.radiation import STEFAN_BOLTZMANN, sink_radiation
-from sinkopt.physics.transient import PowerSchedule, simulate, time_to_limit
+from sinkopt.physics.transient import PowerSchedule, network_modes, simulate, time_to_limit
 
 __all__ = ["StillAirResult", "still_air_conductance", "still_air_steady", "largest_still_air_load",
            "fan_stop_transient", "fans_stopped", "fans_stopped_of"]
@@ -138,9 +139,10 @@ def fan_stop_transient(problem: Problem, g: SinkGeometry, junction0_C: np.ndarra
     """From the steady state with the fans running (junctions ``junction0_C`` (m, s), mean sink
     rise ``sink_rise0`` (m,)) to still air at full load, at t = 0.
 
-    Network per design: the sink (its whole heat capacity m c_p) to the ambient through the
-    still-air conductance; each junction (capacity τ_jc / R_jc) to the sink through the
-    resistance that reproduces its still-air steady state. The still-air conductance rises with
+    Network per design (sinkopt.model.thermal_network): the sink (its whole heat capacity
+    m c_p) to the ambient through the still-air conductance; each junction (its Cauer ladder,
+    or one node of capacity τ_jc / R_jc) to the sink through the resistance that reproduces its
+    steady state. The still-air conductance rises with
     the sink temperature, so it is re-evaluated at the start of each of ``steps`` geometric time
     steps (exact solution within a step, sinkopt.physics.transient)."""
     s_air = problem.still_air
@@ -161,45 +163,45 @@ def fan_stop_transient(problem: Problem, g: SinkGeometry, junction0_C: np.ndarra
     r_running = (np.asarray(junction0_C, dtype=float) - t_a
                  - np.asarray(sink_rise0, dtype=float)[:, None]) / power[None, :]
     r_link = np.maximum(np.fmax(r_still, r_running), 1e-6)
-    r_jc = np.array([d.r_jc for d in devices], dtype=float)
-    c_j = np.broadcast_to(np.array([s_air.tau_jc_s], dtype=float) / np.maximum(r_jc, 1e-9), (m, s))
     mass = _sink_mass(problem, g)
-    c = np.concatenate([(mass * problem.specific_heat)[:, None], c_j], axis=1)  # (m, s+1)
+    net = device_network(devices, r_link, mass * problem.specific_heat, s_air.tau_jc_s)
+    jn = net.junction_nodes
     edges = np.concatenate([[0.0], np.geomspace(0.05, s_air.horizon_s, steps)])
-    state = np.concatenate([np.asarray(sink_rise0, dtype=float)[:, None],
-                            np.asarray(junction0_C, dtype=float) - t_a], axis=1)
-    p_nodes = np.concatenate([[0.0], power])[None, None, :]  # all heat enters at the junctions
+    state = running_state(net, sink_rise0, np.asarray(junction0_C, dtype=float) - t_a)
+    # One decomposition at the final still-air conductance; within each step the gap between
+    # the conductance at the step's start and that reference acts as a heat input at the sink
+    # node (as exact as freezing the conductance over the step, at 1/steps the cost).
+    g_ref = fn(rise_final)
+    G = net.with_ambient(g_ref)
+    modes = network_modes(G, net.C)
+    p_dev = net.node_power(power)
     limit = tj_max - t_a
     first = np.full(m, np.inf)
     which = np.full(m, -1)
-    trace_j = [state[:, 1:].copy()]
+    trace_j = [state[:, jn].copy()]
     trace_s = [state[:, 0].copy()]
     for k in range(steps):
         dt = edges[k + 1] - edges[k]
-        g_amb = fn(state[:, 0])
-        G = np.zeros((m, s + 1, s + 1))
-        link = 1.0 / r_link
-        G[:, 0, 0] = g_amb + link.sum(axis=1)
-        for j in range(s):
-            G[:, 0, j + 1] = G[:, j + 1, 0] = -link[:, j]
-            G[:, j + 1, j + 1] = link[:, j]
-        sched = PowerSchedule(np.array([0.0]), np.broadcast_to(p_nodes, (m, 1, s + 1)))
-        end = simulate(G, c, sched, np.array([dt]), T0=state)[:, 0, :]
+        p_nodes = np.repeat(p_dev[None, :], m, axis=0)
+        p_nodes[:, 0] += (g_ref - fn(state[:, 0])) * state[:, 0]
+        sched = PowerSchedule(np.array([0.0]), p_nodes[:, None, :])
+        end = simulate(G, net.C, sched, np.array([dt]), T0=state, modes=modes)[:, 0, :]
         todo = np.isinf(first)
-        crossed = todo[:, None] & (end[:, 1:] >= limit[None, :])
+        crossed = todo[:, None] & (end[:, jn] >= limit[None, :])
         for j in range(s):
             rows = np.flatnonzero(crossed[:, j])
             if rows.size == 0:
                 continue
-            sub = PowerSchedule(np.array([0.0]), np.broadcast_to(p_nodes, (rows.size, 1, s + 1)))
-            t = time_to_limit(G[rows], c[rows], sub, limit[j], node=j + 1, T0=state[rows],
-                              t_end=dt)
+            sub = PowerSchedule(np.array([0.0]), sched.power[rows])
+            t = time_to_limit(G[rows], net.C[rows], sub, limit[j], node=int(jn[j]),
+                              T0=state[rows], t_end=dt, grid_points=64,
+                              modes=tuple(x[rows] for x in modes))
             t = edges[k] + np.minimum(t, dt)
             better = t < first[rows]
             first[rows[better]] = t[better]
             which[rows[better]] = j
         state = end
-        trace_j.append(state[:, 1:].copy())
+        trace_j.append(state[:, jn].copy())
         trace_s.append(state[:, 0].copy())
     return FanStop(edges, t_a + np.stack(trace_j, axis=1), t_a + np.stack(trace_s, axis=1),
                    first, [devices[w].name if w >= 0 else None for w in which])
@@ -249,13 +251,13 @@ def fans_stopped(problem: Problem, g: SinkGeometry, junction0_C: np.ndarray,
                           fan_stop_transient(problem, g, junction0_C, sink_rise0, stack_choice))
 
 
-def fans_stopped_of(problem: Problem, params, running: BatchResult) -> StillAirResult:
+def fans_stopped_of(problem: Problem, params, running) -> StillAirResult:
     """:func:`fans_stopped` of designs given as parameters, with their running state
-    ``running`` (evaluate_params of the same designs, exact series)."""
+    ``running`` (a sinkopt.model.system.BatchResult of the same designs, exact series)."""
     cols = to_columns(problem, params)
     n = len(next(iter(cols.values())))
-    g = _geometry(problem, cols)
+    g = geometry_of(problem, cols)
     ev = running.evaluation
     heat = sum(d.power for d in problem.devices)
     return fans_stopped(problem, g, ev.junction_C, np.nan_to_num(ev.r_sink * heat),
-                        _stack_choice(problem, cols, n))
+                        stack_choice(problem, cols, n))

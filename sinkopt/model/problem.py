@@ -24,6 +24,8 @@ __all__ = [
     "AirSupply",
     "ProcessLimits",
     "Limits",
+    "LoadProfile",
+    "PROFILE_STARTS",
     "Problem",
 ]
 
@@ -48,6 +50,8 @@ OBJECTIVES = {
     "sink_mass": ("mass_kg", "minimize"),
     "fan_power": ("fan_power_W", "minimize"),
     "junction_margin": ("worst_margin_K", "maximize"),
+    "time_to_limit_after_fan_stop": ("time_to_limit_after_fan_stop_s", "maximize"),
+    "peak_junction_in_profile": ("profile_peak_junction_C", "minimize"),
     "air_rise": ("air_rise_K", "minimize"),
     "noise": ("noise_dBA", "minimize"),
 }
@@ -165,6 +169,9 @@ class Limits:
     max_fan_power_W: float | None = None
     max_pressure_drop_Pa: float | None = None
     allow_stall: bool = False
+    #: The fans-stopped checks must leave this long from a fan stop at full load until the first
+    #: junction reaches its limit [s] (needs ``[fans_stopped]``).
+    min_time_to_limit_after_fan_stop_s: float | None = None
     #: What the junction-margin constraint and objective use: "nominal", "pessimistic" (every
     #: uncertain input at its hot-side bound) or "p95" (5th percentile of the margin, first order).
     margin_basis: str = "nominal"
@@ -181,6 +188,28 @@ class StillAir:
     back_exposed: bool = False  #: the back of the base sees the air
     tau_jc_s: float = 0.5  #: junction-to-case time constant of every device [s]
     horizon_s: float = 3600.0  #: how long after a fan stop is followed [s]
+
+
+#: How a load profile begins: ``periodic`` (the profile repeats forever; its periodic steady
+#: state), ``steady`` (from the steady state at the first row's powers), ``ambient`` (from cold:
+#: everything at the inlet air temperature).
+PROFILE_STARTS = ("periodic", "steady", "ambient")
+
+
+@dataclass(frozen=True)
+class LoadProfile:
+    """A load profile (``[load_profile]``): piecewise-constant power per device, fans running.
+    Row k's powers hold from ``times_s[k]`` to ``times_s[k + 1]``; the last time ends it."""
+
+    times_s: tuple[float, ...]  #: (k + 1,) from 0, increasing
+    power_W: tuple[tuple[float, ...], ...]  #: (k, s) in the study's device order
+    start: str = "periodic"
+    source: Path | None = None
+    constrain: bool = True  #: the profile's peak junctions must keep the junction margin
+
+    @property
+    def duration_s(self) -> float:
+        return float(self.times_s[-1])
 
 
 @dataclass(frozen=True)
@@ -210,6 +239,8 @@ class Problem:
     #: The fans-stopped checks (``[fans_stopped]``), or None.
     still_air: StillAir | None = None
     specific_heat: float = 900.0  #: sink material [J/(kg K)]
+    #: A load profile (``[load_profile]``), or None.
+    load_profile: LoadProfile | None = None
 
     @property
     def slug(self) -> str:

@@ -18,10 +18,13 @@ from sinkopt.model.design import ModelOptions, Perturbation, SinkGeometry
 from sinkopt.model.uncertainty_spec import Z_95, corner, first_order_steps
 from sinkopt.fans import FanArray
 from sinkopt.fans.operating_point import solve_operating_points
+from sinkopt.model.fans_stopped import fan_stop_transient
 from sinkopt.model.known_flow import Evaluation, evaluate, inlet_air
+from sinkopt.model.load_profile import profile_response
 from sinkopt.physics import heatsink as hs
 from sinkopt.physics.bypass import flow_fraction_lossless_bypass
-from sinkopt.model.problem import GEOMETRY_VARIABLES, OBJECTIVES, FanOption, Problem
+from sinkopt.model.columns import full_params, stack_choice, to_columns, geometry_of
+from sinkopt.model.problem import OBJECTIVES, FanOption, Problem
 
 __all__ = ["BatchResult", "evaluate_params", "fan_choices", "full_params", "to_columns",
            "PENALTY", "system_pressure_drop"]
@@ -70,34 +73,6 @@ def _tune_allocator() -> None:
 def fan_choices(problem: Problem) -> dict[str, tuple[FanOption, int]]:
     """Every fan label the search may pick, with its fan option and count."""
     return problem.air.fan_choices()
-
-
-def full_params(problem: Problem, params: dict[str, Any]) -> dict[str, Any]:
-    """The trial's parameters plus every fixed variable's value."""
-    out = {v.name: v.fixed for v in problem.variables if v.is_fixed}
-    out.update(params)
-    return out
-
-
-def to_columns(problem: Problem, params) -> dict[str, np.ndarray]:
-    """Parameters as one array per variable, fixed variables filled in.
-
-    ``params`` is a sequence of dicts (one per design) or a dict of equal-length sequences.
-    """
-    if isinstance(params, dict):
-        cols = {k: np.asarray(v) for k, v in params.items()}
-        n = len(next(iter(cols.values()))) if cols else 0
-    else:
-        params = list(params)
-        n = len(params)
-        names = {k for p in params for k in p}
-        cols = {k: np.array([p[k] for p in params]) for k in names}
-    for v in problem.variables:
-        if v.is_fixed and v.name not in cols:
-            cols[v.name] = np.full(n, v.fixed, dtype=object if isinstance(v.fixed, str) else None)
-        elif n == 0 and v.name not in cols:
-            cols[v.name] = np.array([], dtype=object if v.kind == "categorical" else float)
-    return cols
 
 
 def _impedance_dp(problem: Problem, q, density):
@@ -206,6 +181,7 @@ class BatchResult:
             cols["failed_fan_margin_K"] = self.failed_fan_margin
         if self.basis_margin is not None:
             cols[f"{self.margin_basis}_margin_K"] = self.basis_margin
+        cols.update(self.extras)
         return cols
 
     def warnings(self, i: int) -> list[str]:
@@ -218,40 +194,6 @@ class BatchResult:
         if not self.valid_geometry[i]:
             out.append("geometry cannot exist (fins do not fit on the base)")
         return out
-
-
-def _geometry(problem: Problem, cols: dict[str, np.ndarray]) -> SinkGeometry:
-    values = {}
-    for name, (_, factor) in GEOMETRY_VARIABLES.items():
-        values[name] = np.asarray(cols[name], dtype=float) * factor
-    n = len(values["width_mm"])
-    if any(v.shape != (n,) for v in values.values()):
-        return SinkGeometry.of(width=values["width_mm"], length=values["length_mm"],
-                               fin_height=values["fin_height_mm"],
-                               fin_thickness=values["fin_thickness_mm"],
-                               n_fins=np.round(values["n_fins"]),
-                               base_thickness=values["base_thickness_mm"])
-    return SinkGeometry(width=values["width_mm"], length=values["length_mm"],
-                        fin_height=values["fin_height_mm"],
-                        fin_thickness=values["fin_thickness_mm"],
-                        n_fins=np.round(values["n_fins"]),
-                        base_thickness=values["base_thickness_mm"])
-
-
-def _stack_choice(problem: Problem, cols, n: int) -> np.ndarray | None:
-    """(n, s) index of each device's mounting stack; None: the first stack everywhere."""
-    keys = [f"mount_{d.name}" for d in problem.devices]
-    if not any(k in cols for k in keys):
-        return None
-    out = np.zeros((n, len(problem.devices)), dtype=int)
-    for j, d in enumerate(problem.devices):
-        key = keys[j]
-        if key in cols:
-            names = np.array([s.name for s in d.stacks], dtype=object)
-            chosen = cols[key].astype(object)
-            for k, name in enumerate(names):
-                out[chosen == name, j] = k
-    return out
 
 
 def _fan_codes(problem: Problem, cols, n: int) -> tuple[list[str], np.ndarray]:
@@ -411,8 +353,8 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None,
             over["loss_multiplier"] = options.loss_multiplier * dp
         options = ModelOptions(**{**options.__dict__, **over})
         fan_flow = perturb.fan_flow
-    g = _geometry(problem, cols)
-    mounts = _stack_choice(problem, cols, n)
+    g = geometry_of(problem, cols)
+    mounts = stack_choice(problem, cols, n)
     valid = (g.n_fins >= 2) & (g.n_fins * g.fin_thickness < g.width)
     # Designs that cannot exist are evaluated on a stand-in geometry (so no NaN leaks into the
     # batch) and then marked infeasible with penalty values.
@@ -462,6 +404,8 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None,
     if problem.limits.margin_basis != "nominal" and perturb is None:
         result.margin_basis = problem.limits.margin_basis
         result.basis_margin = np.where(bad, -PENALTY, _robust_margin(problem, cols, spreading, ev))
+    if perturb is None:
+        result.extras = _dynamics(problem, safe, ev, mounts, bad)
     result.constraints = _constraints(problem, result, g, bad)
     feasible = ~bad
     for v in result.constraints.values():
@@ -490,6 +434,42 @@ def _robust_margin(problem: Problem, cols, spreading, ev: Evaluation) -> np.ndar
     return margin.min(axis=1) if s else np.full(n, np.inf)
 
 
+def needs_fan_stop(problem: Problem) -> bool:
+    """The search asks for the seconds to the limit after a fan stop."""
+    return ("time_to_limit_after_fan_stop" in problem.objectives
+            or problem.limits.min_time_to_limit_after_fan_stop_s is not None)
+
+
+def needs_profile(problem: Problem) -> bool:
+    """The search asks for the load profile's peak junctions."""
+    lp = problem.load_profile
+    return lp is not None and (lp.constrain or "peak_junction_in_profile" in problem.objectives)
+
+
+def _dynamics(problem: Problem, g: SinkGeometry, ev: Evaluation, mounts, bad) -> dict:
+    """The transient results the study's objectives and constraints use (only those: each
+    costs about a millisecond per design, a thousand times the steady model)."""
+    out: dict[str, np.ndarray] = {}
+    heat = sum(d.power for d in problem.devices)
+    sink_rise = np.where(bad, np.nan, ev.r_sink * heat)
+    if needs_profile(problem):
+        pr = profile_response(problem, g, ev.junction_C, sink_rise)
+        tj_max = np.array([d.tj_max for d in problem.devices], dtype=float)
+        out["profile_peak_junction_C"] = np.max(pr.peak_junction_C, axis=1)
+        out["profile_peak_margin_K"] = np.min(tj_max[None, :] - pr.peak_junction_C, axis=1)
+    if needs_fan_stop(problem):
+        ok = ~bad
+        t = np.zeros(len(bad))
+        if ok.any():
+            sub = g.take(ok)
+            fs = fan_stop_transient(problem, sub, ev.junction_C[ok], sink_rise[ok],
+                                    None if mounts is None else mounts[ok])
+            # "never within the horizon" counts as the horizon: a finite, comparable number
+            t[ok] = np.minimum(fs.time_to_limit_s, problem.still_air.horizon_s)
+        out["time_to_limit_after_fan_stop_s"] = t
+    return out
+
+
 def _objectives(problem: Problem, r: BatchResult, bad: np.ndarray) -> np.ndarray:
     cols = r.columns()
     out = np.empty((len(r), len(problem.objectives)))
@@ -497,7 +477,7 @@ def _objectives(problem: Problem, r: BatchResult, bad: np.ndarray) -> np.ndarray
         column, direction = OBJECTIVES[name]
         if name == "junction_margin" and r.basis_margin is not None:
             column = f"{r.margin_basis}_margin_K"
-        v = np.asarray(cols[column], dtype=float)
+        v = np.asarray(cols.get(column, np.full(len(r), np.nan)), dtype=float)
         worst = PENALTY if direction == "minimize" else -PENALTY
         out[:, k] = np.where(bad | ~np.isfinite(v), worst, v)
     return out
@@ -540,4 +520,11 @@ def _constraints(problem: Problem, r: BatchResult, g: SinkGeometry, bad) -> dict
             c[name] = value - limit
     if r.failed_fan_margin is not None:
         c["failed_fan_margin_K"] = lim.min_junction_margin_K - r.failed_fan_margin
+    # the transients are not computed for perturbed inputs (uncertainty band): no constraint
+    if "time_to_limit_after_fan_stop_s" in r.extras and \
+            lim.min_time_to_limit_after_fan_stop_s is not None:
+        c["time_to_limit_after_fan_stop_s"] = (lim.min_time_to_limit_after_fan_stop_s
+                                               - r.extras["time_to_limit_after_fan_stop_s"])
+    if "profile_peak_margin_K" in r.extras and problem.load_profile.constrain:
+        c["profile_margin_K"] = lim.min_junction_margin_K - r.extras["profile_peak_margin_K"]
     return {k: np.where(np.isfinite(v), v, PENALTY) for k, v in c.items()}

@@ -35,11 +35,12 @@ from sinkopt.physics.natural_convection import ORIENTATIONS
 from sinkopt.physics.radiation import EMISSIVITY
 from sinkopt.study import catalogs
 from sinkopt.study.calibration_file import read_calibration
+from sinkopt.study.profile_file import read_profile
 from sinkopt.model.design import Conditions, Device, ModelOptions, MountingStack, SlabLayer, ViaLayer
 from sinkopt.errors import InputError
-from sinkopt.model.problem import (DEFAULT_SAMPLER, GEOMETRY_VARIABLES, OBJECTIVES, SAMPLERS, AirSupply,
-                             FanOption, Limits, Problem, ProcessLimits, StillAir, Variable,
-                             fan_label)
+from sinkopt.model.problem import (DEFAULT_SAMPLER, GEOMETRY_VARIABLES, OBJECTIVES,
+                                   PROFILE_STARTS, SAMPLERS, AirSupply, FanOption, Limits, Problem,
+                                   ProcessLimits, StillAir, Variable, fan_label)
 from sinkopt.study.schema import (PROCESS_KEYS, PROCESS_PRESETS, Problems, Table, cross_check,
                                   item_path, join_path, read_impedance_curve, resolve_files, show,
                                   span)
@@ -48,7 +49,7 @@ __all__ = ["load_study", "parse_study", "fan_label", "fan_choices", "fan_speed_r
            "mount_variable", "SAMPLERS", "SECTIONS", "FAN_SPEED_MAX"]
 
 SECTIONS = ("study", "ambient", "device", "sink", "air", "objectives", "constraints", "model",
-            "uncertainty", "fans_stopped")
+            "uncertainty", "fans_stopped", "load_profile")
 #: Highest allowed fan speed, as a fraction of the rated speed (fan laws beyond the data).
 FAN_SPEED_MAX = 1.2
 #: Default junction margin [K]: common practice is 10-25 K below tj_max (common practice, no source).
@@ -57,7 +58,7 @@ DEFAULT_MARGIN_K = 10.0
 _STUDY_KEYS = ("name", "description", "trials", "seed", "sampler")
 _AMBIENT_KEYS = ("temperature_C", "altitude_m")
 _DEVICE_KEYS = ("name", "power_W", "tj_max_C", "r_jc_K_per_W", "center_x_mm", "center_y_mm",
-                "footprint_x_mm", "footprint_y_mm", "mounting")
+                "footprint_x_mm", "footprint_y_mm", "mounting", "zth_foster")
 _MOUNTING_KEYS = ("name", "interface", "interface_K_cm2_per_W", "contact_area_mm2", "layer")
 _SLAB_KEYS = ("name", "thickness_mm", "conductivity_W_per_mK", "area_mm2")
 _VIA_KEYS = ("name", "vias", "via_drill_mm", "via_plating_um", "board_thickness_mm",
@@ -71,7 +72,8 @@ _AIR_KEYS = ("fan", *_FLOW_KEYS, "approach_velocity_m_per_s", "base_in_airstream
 _FAN_KEYS = ("file", "count", "arrangement", "speed", "efficiency")
 _CONSTRAINT_KEYS = ("min_junction_margin_K", "max_air_rise_K", "max_noise_dBA", "max_width_mm",
                     "max_length_mm", "max_height_mm", "max_mass_kg", "max_fan_power_W",
-                    "max_pressure_drop_Pa", "allow_stall", "margin_basis")
+                    "max_pressure_drop_Pa", "min_time_to_limit_after_fan_stop_s", "allow_stall",
+                    "margin_basis")
 _MODEL_CHOICES = {
     "heat_transfer": "sinkopt.physics.heatsink:HEAT_TRANSFER_MODELS",
     "hydraulic_diameter": "sinkopt.physics.heatsink:HYDRAULIC_DIAMETERS",
@@ -208,6 +210,44 @@ def _mounting(data: dict, path: str, problems: Problems, footprint_area):
     return MountingStack(name, tuple(layers), iface, r_spec, contact)
 
 
+#: How far the Foster resistances may sum from r_jc_K_per_W (datasheet rounding) [-].
+FOSTER_SUM_TOLERANCE = 0.05
+
+
+def _foster(t: Table, r_jc):
+    """A device's ``zth_foster = {r_K_per_W = [...], tau_s = [...]}``: ((R_i), (τ_i)), ((), ())
+    when absent, None when wrong."""
+    data = t.table("zth_foster")
+    if data is None:
+        return (), ()
+    sub = Table(data, t.at("zth_foster"), t.problems, ("r_K_per_W", "tau_s"))
+    lists = {}
+    for key, unit in (("r_K_per_W", "K/W"), ("tau_s", "s")):
+        v = sub._get(key, True, f"a list of the Foster {'resistances' if unit == 'K/W' else 'time constants'} "
+                                f"from the datasheet's Z_th curve, {unit}")
+        if v is None:
+            return None
+        if (not isinstance(v, list) or not v or len(v) > 20
+                or not all(isinstance(x, (int, float)) and not isinstance(x, bool) and x > 0
+                           for x in v)):
+            sub.add(key, f"expected a list of 1 to 20 positive numbers [{unit}], got {show(v)}")
+            return None
+        lists[key] = tuple(float(x) for x in v)
+    r, tau = lists["r_K_per_W"], lists["tau_s"]
+    if len(r) != len(tau):
+        sub.add("tau_s", f"{len(tau)} time constants for {len(r)} resistances; give one per stage")
+        return None
+    if len(set(tau)) != len(tau):
+        sub.add("tau_s", f"the time constants must differ (merge equal stages), got {show(list(tau))}")
+        return None
+    if r_jc is not None and abs(sum(r) - r_jc) > FOSTER_SUM_TOLERANCE * r_jc:
+        sub.add("r_K_per_W", f"the stages sum to {sum(r):.4g} K/W, but r_jc_K_per_W is {r_jc:g}; "
+                             f"both describe junction to case (within "
+                             f"{FOSTER_SUM_TOLERANCE:.0%})")
+        return None
+    return r, tau
+
+
 def _devices(root: Table) -> list:
     problems = root.problems
     items = root.tables("device", required=True,
@@ -255,9 +295,14 @@ def _devices(root: Table) -> list:
         if name is None or None in vals.values() or None in stacks or not stacks:
             out.append(None)
             continue
+        foster = _foster(t, vals["r_jc"])
+        if foster is None:
+            out.append(None)
+            continue
         mm = {k: (v * 1e-3 if k in ("center_x", "center_y", "size_x", "size_y") else v)
               for k, v in vals.items()}
-        out.append(Device(name=name, stacks=tuple(stacks), **mm))
+        out.append(Device(name=name, stacks=tuple(stacks), foster_r=foster[0],
+                          foster_tau=foster[1], **mm))
     return out
 
 
@@ -515,7 +560,7 @@ def _constraints(root: Table):
     t = Table(data, "constraints", root.problems, _CONSTRAINT_KEYS)
     kw = {"min_junction_margin_K": t.number("min_junction_margin_K", "K", default=DEFAULT_MARGIN_K,
                                             minimum=0)}
-    units = {"K": "K", "dBA": "dB(A)", "mm": "mm", "kg": "kg", "W": "W", "Pa": "Pa"}
+    units = {"K": "K", "dBA": "dB(A)", "mm": "mm", "kg": "kg", "W": "W", "Pa": "Pa", "s": "s"}
     for key in _CONSTRAINT_KEYS[1:-2]:
         unit = key.rsplit("_", 1)[1]
         v = t.number(key, units[unit], minimum=0, exclusive=True)
@@ -563,6 +608,33 @@ def _still_air(root: Table):
         return None, False
     return StillAir(orientation, emissivity, finish or ("" if "emissivity" in data
                                                         else "anodised"), **kw), True
+
+
+_LOAD_PROFILE_KEYS = ("file", "start", "constrain")
+
+
+def _load_profile(root: Table, base_dir: Path, devices, inputs: list[Path]):
+    """The ``[load_profile]`` table and its CSV (None when absent); returns (profile, ok)."""
+    data = root.table("load_profile")
+    if data is None:
+        return None, True
+    t = Table(data, "load_profile", root.problems, _LOAD_PROFILE_KEYS)
+    file = t.text("file", required=True, hint="a CSV of time against power (docs/study-file.md#load-profile)")
+    start = t.text("start", default="periodic", choices=PROFILE_STARTS)
+    constrain = t.boolean("constrain", default=True)
+    if None in (file, start, constrain) or None in devices:
+        return None, False
+    path = Path(base_dir or ".") / file
+    if not path.is_file():
+        t.add("file", f"no load profile {show(file)} (relative to the study's folder)")
+        return None, False
+    try:
+        profile = read_profile(path, devices, start, constrain)
+    except InputError as exc:
+        t.add("file", str(exc))
+        return None, False
+    inputs.append(path.resolve())
+    return profile, True
 
 
 def _uncertainty(root: Table):
@@ -635,6 +707,23 @@ def _model(root: Table, base_dir: Path, inputs: list[Path]):
     return options, calibration
 
 
+def _check_dynamics(problems, root: Table, objectives, limits, still_ok: bool) -> None:
+    """Objectives and constraints on the transients need the tables that describe them."""
+    uses = set(objectives or ())
+    if still_ok and root.table("fans_stopped") is None:
+        hint = ("add a [fans_stopped] table with orientation = one of "
+                + ", ".join(ORIENTATIONS) + " (how the sink hangs with the fans stopped)")
+        if "time_to_limit_after_fan_stop" in uses:
+            problems.add("objectives.use", f"time_to_limit_after_fan_stop needs the sink in still "
+                                           f"air: {hint}")
+        if limits is not None and limits.min_time_to_limit_after_fan_stop_s is not None:
+            problems.add("constraints.min_time_to_limit_after_fan_stop_s", f"needs the sink in "
+                                                                           f"still air: {hint}")
+    if "peak_junction_in_profile" in uses and root.table("load_profile") is None:
+        problems.add("objectives.use", "peak_junction_in_profile needs a load profile: add a "
+                                       "[load_profile] table with file = \"<profile>.csv\"")
+
+
 # ---- entry points ------------------------------------------------------------------------------
 _TOML_POS = re.compile(r"\(at line (\d+), column (\d+)\)")
 
@@ -677,8 +766,10 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
     limits = _constraints(root)
     options, calibration = _model(root, base_dir, inputs)
     uncertainty = _uncertainty(root)
-    still_air, _ = _still_air(root)
+    still_air, still_ok = _still_air(root)
+    profile, _ = _load_profile(root, base_dir, devices, inputs)
     cross_check(problems, sink, devices, air, objectives, limits, ambient)
+    _check_dynamics(problems, root, objectives, limits, still_ok)
     problems.raise_if_any()
 
     variables = [_variable(k, sink["geometry"][k]) for k in GEOMETRY_VARIABLES]
@@ -716,6 +807,7 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
         uncertainty=uncertainty,
         still_air=still_air,
         specific_heat=material.specific_heat,
+        load_profile=profile,
     )
 
 

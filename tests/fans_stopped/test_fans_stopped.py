@@ -16,7 +16,8 @@ import pytest
 from sinkopt.cli.main import main
 from sinkopt.model.fans_stopped import (fans_stopped_of, largest_still_air_load,
                                         still_air_conductance, still_air_steady)
-from sinkopt.model.system import _geometry, evaluate_params, to_columns
+from sinkopt.model.columns import geometry_of as _geometry
+from sinkopt.model.system import evaluate_params, to_columns
 from sinkopt.study.reader import load_study
 
 ROOT = Path(__file__).resolve().parents[2]
