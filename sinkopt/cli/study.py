@@ -143,6 +143,10 @@ def cmd_evaluate(args) -> int:
 
         rec["fans_stopped"] = fans_stopped_of(problem, [params], result).record(
             0, [d.name for d in problem.devices])
+    if problem.load_profile is not None:
+        from sinkopt.model.load_profile import profile_of
+
+        rec["load_profile"] = profile_of(problem, [params], result).record(0, problem.devices)
     if args.json:
         json.dump(rec, sys.stdout, indent=2, allow_nan=False)
         sys.stdout.write("\n")
@@ -184,6 +188,11 @@ def _print_design(rec: dict) -> None:
               f"{100 * still['largest_load_fraction']:.3g} %; after a fan stop at full load "
               + ("no junction reaches its limit" if t is None else
                  f"{still['first_device_at_limit']} reaches its limit in {t:.4g} s"))
+    prof = rec.get("load_profile")
+    if prof:
+        print(f"  load profile        ({prof['start']} start) peak Tj "
+              + ", ".join(f"{k} {_fmt(v, '°C')} at {_fmt(prof['peak_time_s'][k], 's')}"
+                          for k, v in prof["peak_junction_C"].items()))
     failing = failed_constraints(rec)
     if failing:
         print("  fails: " + "; ".join(failing))
@@ -201,6 +210,10 @@ _CONSTRAINT_TEXT = {
     "devices_on_base_mm": ("device footprints", "mm off the base"),
     "airflow": ("airflow", "no fan operating point"),
     "fan_stall": ("fan stall", "operating point in the stall region"),
+    "time_to_limit_after_fan_stop_s": ("time to the limit after a fan stop",
+                                       "s short of the required time"),
+    "profile_margin_K": ("junction margin at the load profile's peak",
+                         "K short of the required margin"),
 }
 
 

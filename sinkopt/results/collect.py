@@ -21,6 +21,7 @@ from sinkopt.search.pareto import nondominated_mask, to_minimization
 from sinkopt.model.problem import OBJECTIVES, Problem
 from sinkopt.model.system import BatchResult, evaluate_params
 from sinkopt.model.fans_stopped import StillAirResult, fans_stopped_of
+from sinkopt.model.load_profile import ProfileResult, profile_of
 from sinkopt.model.uncertainty import Band, junction_band
 
 __all__ = ["Results", "collect_results", "design_record", "evaluate_command",
@@ -133,6 +134,7 @@ class Results:
     states: dict[str, int] = field(default_factory=dict)
     band: Band | None = None  #: uncertainty band of the Pareto designs, in pareto_trials order
     still_air: StillAirResult | None = None  #: fans-stopped checks, in pareto_trials order
+    profile: ProfileResult | None = None  #: the load profile's response, in pareto_trials order
 
     @property
     def directions(self) -> list[str]:
@@ -152,6 +154,8 @@ class Results:
             if self.still_air is not None:
                 rec["fans_stopped"] = self.still_air.record(
                     k, [d.name for d in self.problem.devices])
+            if self.profile is not None:
+                rec["load_profile"] = self.profile.record(k, self.problem.devices)
             out.append(rec)
         return out
 
@@ -202,10 +206,13 @@ def collect_results(problem: Problem, study: optuna.Study, with_band: bool = Tru
         # the same draws for every design (seeded from the study): the band is reproducible
         band = junction_band(problem, [complete[i].params for i in idx[front]],
                              problem.uncertainty)
-    still_air = None
-    if front.any() and problem.still_air is not None:
+    still_air = profile = None
+    if front.any() and (problem.still_air is not None or problem.load_profile is not None):
         front_params = [complete[i].params for i in idx[front]]
         running = evaluate_params(problem, front_params, spreading="exact")
-        still_air = fans_stopped_of(problem, front_params, running)
+        if problem.still_air is not None:
+            still_air = fans_stopped_of(problem, front_params, running)
+        if problem.load_profile is not None:
+            profile = profile_of(problem, front_params, running)
     return Results(problem, numbers, search, pareto, exact, numbers[idx], states, band,
-                   still_air)
+                   still_air, profile)

@@ -165,6 +165,10 @@ def pareto_frame(results: Results):
             row["still_air_largest_load_fraction"] = still["largest_load_fraction"]
             for name, v in still["steady_junction_C"].items():
                 row[f"tj_{name}_fans_stopped_C"] = v
+        prof = rec.get("load_profile")
+        if prof:
+            for name, v in prof["peak_junction_C"].items():
+                row[f"tj_{name}_profile_peak_C"] = v
         diffs = rec.get("spreading_check", {}).get("junction_difference_K", {})
         if diffs:
             vals = [abs(v) for v in diffs.values() if v is not None]

@@ -736,8 +736,22 @@ def design_data(problem: Problem, records: Sequence[dict[str, Any]],
                 "tj_C": [[_num(v) for v in tr["junction_C"][d.name][keep]]
                          for d in problem.devices],
             }
+        prof = r.get("load_profile")
+        profile_data = None
+        if prof:
+            tr = prof.get("trace") or {"time_s": [], "junction_C": {}}
+            step = max(1, len(tr["time_s"]) // 250)  # the curve's shape, not every sample
+            profile_data = {
+                "start": prof["start"],
+                "peak_C": [_num(prof["peak_junction_C"].get(d.name)) for d in problem.devices],
+                "peak_t_s": [_num(prof["peak_time_s"].get(d.name)) for d in problem.devices],
+                "t_s": [_num(v) for v in tr["time_s"][::step]],
+                "tj_C": [[_num(v) for v in (tr["junction_C"].get(d.name) or [])[::step]]
+                         for d in problem.devices],
+            }
         by_trial[str(r["trial"])] = {
             "band": band_data,
+            "profile": profile_data,
             "still": still_data,
             "feasible": bool(r.get("feasible")),
             "speed_ratio": _num(speeds[k]),

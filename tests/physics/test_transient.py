@@ -193,3 +193,25 @@ def test_time_to_limit_second_segment_and_ladder():
     g, cap = tr.build_ladder([0.2, 0.5, 1.0], [0.05, 2.0, 40.0])
     t_hit = tr.time_to_limit(g, cap, _step(3, watts=10.0), 12.0)
     assert tr.simulate(g, cap, _step(3, watts=10.0), [t_hit])[0, 0] == pytest.approx(12.0, rel=1e-10)
+
+
+def test_periodic_state_against_many_repeated_periods():
+    # brute force: repeat a two-level cycle until it repeats itself (fixed-point iteration of
+    # the exact one-period map); a 3-node ladder with a slow sink node
+    G, C = tr.build_ladder([0.2, 0.5, 0.8], [0.05, 2.0, 400.0])
+    sched = ([0.0, 3.0], [[10.0, 0.0, 0.0], [1.0, 0.0, 0.0]])
+    expected = tr.periodic_state(G, C, sched, 10.0)
+    state = np.zeros(3)
+    for _ in range(3000):  # 3000 periods of 10 s: e^-(30000 / ~560 s) ≈ 1e-23
+        state = tr.simulate(G, C, sched, [10.0], T0=state)[0]
+    np.testing.assert_allclose(expected, state, rtol=1e-9)
+
+
+def test_peak_rise_against_a_dense_sample():
+    G, C = tr.build_ladder([0.2, 0.5, 0.8], [0.05, 2.0, 40.0])
+    sched = ([0.0, 3.0, 5.0], [[10.0, 0.0, 0.0], [1.0, 0.0, 0.0], [4.0, 0.0, 0.0]])
+    t = np.linspace(0.0, 60.0, 600_001)
+    dense = tr.simulate(G, C, sched, t)
+    peak, when = tr.peak_rise(G, C, sched, 60.0, [0, 1, 2])
+    np.testing.assert_allclose(peak, dense.max(axis=0), rtol=1e-7)
+    np.testing.assert_allclose(when, t[dense.argmax(axis=0)], atol=2e-4)

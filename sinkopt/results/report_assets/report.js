@@ -984,6 +984,46 @@
       if (plotlyState === 'loading') { plotlyReady.then(drawStill); } else { drawStill(); }
     }
 
+    if (d.profile) {
+      var lp = d.profile;
+      panel.appendChild(el('h4', null, 'Load profile'));
+      var worst = null;
+      devices.forEach(function (dv, k) {
+        var m = dv.tj_max_C - lp.peak_C[k];
+        if (lp.peak_C[k] !== null && (worst === null || m < worst[1])) { worst = [dv.name, m, lp.peak_t_s[k]]; }
+      });
+      panel.appendChild(el('p', {'class': 'note', id: 'profile-summary'},
+        'Fans running, ' + (lp.start === 'periodic' ? 'the profile repeated (its periodic steady state)' :
+          lp.start === 'steady' ? 'from the steady state at its first powers' : 'from cold (ambient)') +
+        (worst ? '. The least margin at a peak: ' + worst[0] + ', ' + fmt(worst[1], 3) + ' K at ' +
+          fmt(worst[2], 4) + ' s.' : '.')));
+      var prow = devices.map(function (dv, k) {
+        return [dv.name, lp.peak_C[k], lp.peak_t_s[k], dv.tj_max_C];
+      });
+      var ptab = table(['device', 'peak Tj [°C]', 'at [s]', 'Tj,max [°C]'], prow, 'profile');
+      ptab.id = 'design-profile';
+      var pw = el('div', {'class': 'scroll'});
+      pw.appendChild(ptab);
+      panel.appendChild(pw);
+      var pfig = el('figure');
+      pfig.appendChild(el('figcaption', null, 'Junction temperatures through the load profile'));
+      var pbox = el('div', {id: 'profile-plot', 'class': 'plot'});
+      pfig.appendChild(pbox);
+      panel.appendChild(pfig);
+      var drawProfile = function () {
+        if (!pbox.isConnected || !HAVE_PLOTLY) { return; }
+        var traces = devices.map(function (dv, k) {
+          return {type: 'scatter', mode: 'lines', x: lp.t_s, y: lp.tj_C[k], name: esc(dv.name),
+                  line: {color: PALETTE[k % PALETTE.length]},
+                  hovertemplate: '%{x:.4g} s: %{y:.4g} °C<extra>' + esc(dv.name) + '</extra>'};
+        });
+        Plotly.newPlot(pbox, traces, baseLayout({height: 320,
+          xaxis: axisStyle('time in the profile [s]'),
+          yaxis: axisStyle('junction temperature [°C]')}), CONFIG);
+      };
+      if (plotlyState === 'loading') { plotlyReady.then(drawProfile); } else { drawProfile(); }
+    }
+
     panel.appendChild(el('h4', null, 'Warnings'));
     if (d.warnings.length) {
       var ul = el('ul', {'class': 'warnings'});
