@@ -173,6 +173,21 @@ def describe_problem(problem) -> list[str]:
                        f"<= {v:g} {unit}")
     out.append(f"  fan stall {'allowed' if lim.allow_stall else 'not allowed'}")
     out.append(f"  junction margin basis: {lim.margin_basis}")
+    if lim.min_time_to_limit_after_fan_stop_s is not None:
+        out.append(f"  after a fan stop at full load, no junction at its limit before "
+                   f"{lim.min_time_to_limit_after_fan_stop_s:g} s")
+    lp = problem.load_profile
+    if lp is not None:
+        if lp.constrain:
+            out.append("  every junction's peak in the load profile keeps the junction margin")
+        heat = [sum(row) for row in lp.power_W]
+        rated = sum(d.power for d in problem.devices)
+        out += ["", f"load profile ({lp.source.name if lp.source else 'study'}; fans running, "
+                    f"{lp.start} start): {len(lp.power_W)} steps over {lp.duration_s:g} s, total "
+                    f"{min(heat):.4g} … {max(heat):.4g} W (rated {rated:.4g} W)"]
+        foster = [d.name for d in problem.devices if d.foster_r]
+        if foster:
+            out.append(f"  junction-to-case from Foster tables: {', '.join(foster)}")
     spec = problem.uncertainty
     out += ["", f"uncertainty ({spec.samples} samples, seed {spec.seed}; the band of every Pareto "
                 "design):"]

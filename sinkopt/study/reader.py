@@ -619,7 +619,7 @@ def _load_profile(root: Table, base_dir: Path, devices, inputs: list[Path]):
     if data is None:
         return None, True
     t = Table(data, "load_profile", root.problems, _LOAD_PROFILE_KEYS)
-    file = t.text("file", required=True, hint="a CSV of time against power (docs/study-file.md#load-profile)")
+    file = t.text("file", required=True, hint="a CSV of time against power (docs/study-file.md, [load_profile])")
     start = t.text("start", default="periodic", choices=PROFILE_STARTS)
     constrain = t.boolean("constrain", default=True)
     if None in (file, start, constrain) or None in devices:
