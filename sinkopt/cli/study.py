@@ -179,6 +179,15 @@ def _print_design(rec: dict) -> None:
     for d in rec["devices"]:
         print(f"    {d['name']:<16} Tj {_fmt(d['junction_C'], '°C')}  margin {_fmt(d['margin_K'], 'K')}"
               f"  (limit {d['tj_max_C']} °C, mounting {d['mounting']})")
+    failed = rec.get("failed_fan")
+    if failed:
+        if failed["applies"]:
+            q = failed["airflow_m3_s"]
+            print(f"  one fan stopped     airflow {_fmt(q and q * 3600, 'm3/h')}, Tj "
+                  + ", ".join(f"{k} {_fmt(v, '°C')}" for k, v in failed["junction_C"].items())
+                  + f" (worst margin {_fmt(failed['worst_margin_K'], 'K')})")
+        else:
+            print(f"  one fan stopped     {failed['note']}")
     still = rec.get("fans_stopped")
     if still:
         t = still["time_to_limit_after_fan_stop_s"]
@@ -227,6 +236,10 @@ def failed_constraints(rec: dict) -> list[str]:
             continue
         if no_air and name in ("junction_margin_K", "failed_fan_margin_K"):
             continue  # no temperatures without an operating point
+        if name == "failed_fan_margin_K" and not (rec.get("failed_fan") or {}).get("applies", True):
+            out.append("one fan stopped: a single fan has no redundancy (use two or more fans, "
+                       "or turn failed_fan_check off)")
+            continue
         what, unit = _CONSTRAINT_TEXT.get(name, (name.replace("_", " "), "over the limit"))
         if name in ("airflow", "fan_stall"):
             out.append(f"{what}: {unit}")

@@ -132,6 +132,11 @@ class BatchResult:
     constraints: dict[str, np.ndarray]
     feasible: np.ndarray
     failed_fan_margin: np.ndarray | None = None  #: worst margin with one fan stopped [K]
+    #: With one fan of the array stopped: junctions (n, s) [°C], the flow [m^3/s], and whether
+    #: the check applies (an array of two or more fans; a single fan has no redundancy).
+    failed_fan_junction_C: np.ndarray | None = None
+    failed_fan_flow: np.ndarray | None = None
+    failed_fan_applies: np.ndarray | None = None
     extras: dict[str, np.ndarray] = field(default_factory=dict)
     #: The margin the constraint and objective use when the study's margin basis is not
     #: "nominal": the worst margin at the pessimistic corner, or its first-order 5th percentile.
@@ -179,6 +184,9 @@ class BatchResult:
             cols[f"margin_{name}_K"] = e.margin[:, j]
         if self.failed_fan_margin is not None:
             cols["failed_fan_margin_K"] = self.failed_fan_margin
+            cols["failed_fan_airflow_m3_s"] = self.failed_fan_flow
+            for j, name in enumerate(e.device_names):
+                cols[f"tj_{name}_failed_fan_C"] = self.failed_fan_junction_C[:, j]
         if self.basis_margin is not None:
             cols[f"{self.margin_basis}_margin_K"] = self.basis_margin
         cols.update(self.extras)
@@ -394,13 +402,19 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None,
                                  fan_codes=codes, fan_flow=fan_flow)
         f_fins = _fin_flow(problem, safe, f_flow, air, options)
         with np.errstate(invalid="ignore", divide="ignore"):
-            failed_margin = evaluate(safe, f_fins, problem.devices, problem.conductivity,
-                                     problem.density, problem.conditions, options,
-                                     stack_choice=mounts, perturb=perturb).worst_margin
+            failed_ev = evaluate(safe, f_fins, problem.devices, problem.conductivity,
+                                 problem.density, problem.conditions, options,
+                                 stack_choice=mounts, perturb=perturb)
+        failed_margin = failed_ev.worst_margin
+        names, fan_code = codes
+        counts = np.array([fan_choices(problem)[k][1] for k in names], dtype=int)
+        failed_extra = (failed_ev.junction_C, f_flow, counts[fan_code] >= 2)
+    else:
+        failed_extra = (None, None, None)
     bad = no_air | ~valid
     result = BatchResult(cols, ev, labels, flow, flow_fins, dp, power, noise, speed, stall,
                          no_air, valid, np.empty((n, 0)), {}, np.zeros(n, dtype=bool),
-                         failed_margin)
+                         failed_margin, *failed_extra)
     if problem.limits.margin_basis != "nominal" and perturb is None:
         result.margin_basis = problem.limits.margin_basis
         result.basis_margin = np.where(bad, -PENALTY, _robust_margin(problem, cols, spreading, ev))

@@ -59,6 +59,22 @@ def evaluate_command(problem: Problem, params: dict[str, Any]) -> str:
                      *(shlex.quote(s) for s in sets)])
 
 
+#: What a design with a single fan says of the one-fan-stopped check.
+SINGLE_FAN_NOTE = ("does not apply: a single fan has no redundancy (with it stopped the sink is in "
+                   "still air; see [fans_stopped])")
+
+
+def failed_fan_record(problem: Problem, result: BatchResult, i: int) -> dict[str, Any]:
+    """The design with one fan of its array stopped (``failed_fan_check``)."""
+    if not result.failed_fan_applies[i]:
+        return {"applies": False, "note": SINGLE_FAN_NOTE}
+    return {"applies": True,
+            "airflow_m3_s": _clean(result.failed_fan_flow[i]),
+            "worst_margin_K": _clean(result.failed_fan_margin[i]),
+            "junction_C": {d.name: _clean(result.failed_fan_junction_C[i, j])
+                           for j, d in enumerate(problem.devices)}}
+
+
 def design_record(problem: Problem, result: BatchResult, i: int,
                   trial: int | None = None, search_result: BatchResult | None = None,
                   search_index: int | None = None) -> dict[str, Any]:
@@ -103,6 +119,8 @@ def design_record(problem: Problem, result: BatchResult, i: int,
             "r_jc_K_per_W": d.r_jc,
         })
     rec["devices"] = devices
+    if result.failed_fan_applies is not None:
+        rec["failed_fan"] = failed_fan_record(problem, result, i)
     rec["constraints"] = {k: _clean(v[i]) for k, v in result.constraints.items()}
     rec["objectives"] = {name: _clean(result.objectives[i, k])
                          for k, name in enumerate(problem.objectives)}

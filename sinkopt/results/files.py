@@ -148,6 +148,13 @@ def pareto_frame(results: Results):
             row[f"tj_{d['name']}_C"] = d["junction_C"]
             row[f"margin_{d['name']}_K"] = d["margin_K"]
             row[f"mounting_{d['name']}"] = d["mounting"]
+        failed = rec.get("failed_fan")
+        if failed:
+            row["failed_fan_check"] = "applies" if failed["applies"] else "single fan"
+            row["failed_fan_airflow_m3_s"] = failed.get("airflow_m3_s")
+            row["failed_fan_margin_K"] = failed.get("worst_margin_K")
+            for d in rec["devices"]:
+                row[f"tj_{d['name']}_failed_fan_C"] = (failed.get("junction_C") or {}).get(d["name"])
         band = rec.get("uncertainty")
         if band:
             row["p_exceed"] = band["p_exceed"]

@@ -749,7 +749,15 @@ def design_data(problem: Problem, records: Sequence[dict[str, Any]],
                 "tj_C": [[_num(v) for v in (tr["junction_C"].get(d.name) or [])[::step]]
                          for d in problem.devices],
             }
+        failed = r.get("failed_fan")
+        failed_data = None
+        if failed:
+            failed_data = {"applies": bool(failed["applies"]), "note": failed.get("note"),
+                           "airflow_m3_s": _num(failed.get("airflow_m3_s")),
+                           "tj_C": [_num((failed.get("junction_C") or {}).get(d.name))
+                                    for d in problem.devices]}
         by_trial[str(r["trial"])] = {
+            "failed": failed_data,
             "band": band_data,
             "profile": profile_data,
             "still": still_data,

@@ -944,6 +944,26 @@
       if (plotlyState === 'loading') { plotlyReady.then(drawBand); } else { drawBand(); }
     }
 
+    if (d.failed) {
+      var ff = d.failed;
+      panel.appendChild(el('h4', null, 'With one fan stopped'));
+      if (!ff.applies) {
+        panel.appendChild(el('p', {'class': 'note', id: 'failed-fan-summary'}, 'The check ' + ff.note + '.'));
+      } else {
+        panel.appendChild(el('p', {'class': 'note', id: 'failed-fan-summary'},
+          'One fan of the array stopped, the others at the same setting: airflow ' +
+          fmt(ff.airflow_m3_s * 3600, 3) + ' m³/h.'));
+        var frows = devices.map(function (dv, k) {
+          return [dv.name, ff.tj_C[k], ff.tj_C[k] === null ? null : dv.tj_max_C - ff.tj_C[k], dv.tj_max_C];
+        });
+        var ft = table(['device', 'Tj, one fan stopped [°C]', 'margin [K]', 'Tj,max [°C]'], frows, 'failed');
+        ft.id = 'design-failed-fan';
+        var fw = el('div', {'class': 'scroll'});
+        fw.appendChild(ft);
+        panel.appendChild(fw);
+      }
+    }
+
     if (d.still) {
       var st = d.still;
       panel.appendChild(el('h4', null, 'When the fans stop'));
