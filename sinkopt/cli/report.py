@@ -27,6 +27,9 @@ def register(sub) -> None:
                      help="study file to use instead of the one recorded in run.json")
     rep.add_argument("--out", type=Path, default=None,
                      help="where to write the page (default: RESULTS_DIR/report.html)")
+    rep.add_argument("--force", action="store_true",
+                     help="rebuild even though the study or its inputs changed since the run "
+                          "(the report then describes the files as they are now)")
     rep.set_defaults(func=cmd_report)
 
 
@@ -62,7 +65,6 @@ def cmd_report(args) -> int:
 
     from sinkopt.results.report import write_report
     from sinkopt.results.collect import collect_results
-    from sinkopt.results.files import sha256_file
     from sinkopt.search.storage import STUDY_JOURNAL, storage_for
     from sinkopt.study.reader import load_study
 
@@ -85,11 +87,17 @@ def cmd_report(args) -> int:
         raise InputError("cannot load the study (tried " + ", ".join(map(str, candidates)) +
                          "); give --study with the original file. First error: " + errors[0],
                          str(out_dir))
-    recorded = {Path(p).name: h for p, h in (info.get("inputs") or {}).items()}
-    if problem.source and recorded.get(Path(problem.source).name) not in (
-            None, sha256_file(problem.source)):
-        print(f"sinkopt: warning: {problem.source} changed since the run (SHA-256 differs); "
-              "the report uses the file as it is now", file=sys.stderr)
+    from sinkopt.cli.study import changed_inputs
+
+    changes = changed_inputs(problem, info)
+    if changes and not (args.force or args.study):
+        raise InputError("the study or its inputs changed since the run: " + ", ".join(changes)
+                         + "; the report would describe other inputs than the trials'. Restore "
+                         "them, give --study with the run's study file, or --force",
+                         str(out_dir))
+    if changes:
+        print("sinkopt: warning: inputs changed since the run (" + ", ".join(changes) + "); "
+              "the report uses the files as they are now", file=sys.stderr)
     if not args.storage and not (out_dir / STUDY_JOURNAL).is_file():
         raise InputError(f"no {STUDY_JOURNAL} in the results folder; give --storage with the "
                          "URL the run used", str(out_dir))

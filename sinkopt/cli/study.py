@@ -41,6 +41,13 @@ def register(sub) -> None:
                           "process); see also 'sinkopt worker'")
     run.add_argument("--no-report", action="store_true", help="skip report.html")
     run.add_argument("--no-progress", action="store_true", help="no progress bar")
+    fresh = run.add_mutually_exclusive_group()
+    fresh.add_argument("--new", action="store_true",
+                       help="start afresh in a results folder that holds another run (its "
+                            "trials, results and report are deleted)")
+    fresh.add_argument("--force", action="store_true",
+                       help="resume even though the study or its inputs changed since the "
+                            "folder's run (the results then mix both)")
     run.set_defaults(func=cmd_run)
 
     ev = sub.add_parser(
@@ -296,6 +303,66 @@ class _Progress:
             self.bar.close()
 
 
+#: What a results folder holds from a run (deleted by ``run --new``).
+RUN_FILES = ("run.json", "trials.csv", "pareto.csv", "report.html", "study.journal")
+RUN_FOLDERS = ("designs", "inputs")
+
+
+def changed_inputs(problem, info: dict) -> list[str]:
+    """The inputs recorded in a folder's run.json whose SHA-256 differs from the files now (or
+    that are gone), and the current inputs the run did not have; by file name."""
+    from sinkopt.results.files import sha256_file
+
+    recorded = {Path(p).name: h for p, h in (info.get("inputs") or {}).items()}
+    now = {Path(p).name: sha256_file(Path(p)) for p in problem.inputs if Path(p).is_file()}
+    out = [f"{name} (changed)" for name, h in recorded.items() if name in now and now[name] != h]
+    out += [f"{name} (no longer an input)" for name in recorded if name not in now]
+    out += [f"{name} (new input)" for name in now if name not in recorded]
+    return out
+
+
+def _check_results_folder(problem, out: Path, storage_url, fresh: bool) -> None:
+    """Refuse to mix runs in one results folder: another study, or this study with inputs
+    changed since, needs ``--new`` (start afresh) or ``--force`` (resume anyway)."""
+    import shutil
+
+    info_path = out / "run.json"
+    if not info_path.is_file():
+        return
+    try:
+        info = json.loads(info_path.read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        info = {}
+    if fresh:
+        for name in RUN_FILES:
+            (out / name).unlink(missing_ok=True)
+        for name in RUN_FOLDERS:
+            shutil.rmtree(out / name, ignore_errors=True)
+        if storage_url:
+            import optuna
+
+            from sinkopt.search.storage import storage_for
+
+            try:
+                optuna.delete_study(study_name=problem.name,
+                                    storage=storage_for(out, storage_url))
+            except KeyError:
+                pass
+        print(f"sinkopt: started afresh in {out} (--new)", file=sys.stderr)
+        return
+    other = info.get("study")
+    if other is not None and other != problem.name:
+        raise InputError(f"holds the results of another study ({other!r}, not "
+                         f"{problem.name!r}); give another --out, or --new to start afresh "
+                         "there", str(out), "--out")
+    changes = changed_inputs(problem, info)
+    if changes:
+        raise InputError("the study or its inputs changed since this folder's run: "
+                         + ", ".join(changes) + "; resuming would mix both. Give --new to "
+                         "start afresh, another --out, or --force to resume anyway",
+                         str(out), "--out")
+
+
 def cmd_run(args) -> int:
     import random
 
@@ -315,6 +382,8 @@ def cmd_run(args) -> int:
         raise InputError(f"must be 1 or more, got {args.trials}", field="--trials")
     if args.workers < 1:
         raise InputError(f"must be 1 or more, got {args.workers}", field="--workers")
+    if not args.force:
+        _check_results_folder(problem, out, args.storage, fresh=args.new)
     out.mkdir(parents=True, exist_ok=True)
     n_trials = problem.trials if args.trials is None else args.trials
     seed = args.seed if args.seed is not None else problem.seed
