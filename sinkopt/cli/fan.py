@@ -1,9 +1,9 @@
-"""``sinkopt fan check FILE.csv [--out PLOT.html]``: validate a fan-curve file, show it, plot it.
+"""``sinkopt fan check FILE.csv... [--plot PLOT.html|DIR]``: validate fan-curve files, show them, plot them.
 
 The file is parsed with :func:`sinkopt.fans.load_fan_curve`; any problem is an
 :class:`~sinkopt.errors.InputError` (exit code 2, nothing written). On success the curve is printed
-in SI and in the file's own units, and an offline HTML plot (plotly.js embedded) is written with
-the stall region shaded. Plotly is imported only when the plot is drawn.
+in SI and in the file's own units, and, where asked (``--plot``), an offline HTML plot
+(plotly.js embedded) is written with the stall region shaded. Plotly is imported only when the plot is drawn.
 """
 from __future__ import annotations
 
@@ -18,7 +18,8 @@ __all__ = ["register", "cmd_check", "CurvePlotData", "curve_plot_data", "format_
 
 _EPILOG = """examples:
   sinkopt fan check catalogs/fans/demo-axial-80-stall.csv
-  sinkopt fan check my_fan.csv --out /tmp/my_fan.html
+  sinkopt fan check my_fan.csv --plot /tmp/my_fan.html
+  sinkopt fan check fans/*.csv --plot /tmp/fan_plots
 
 file format: docs/fan-curves.md (units in the column names, e.g. flow_cfm,pressure_inH2O)"""
 
@@ -37,10 +38,13 @@ def register(subparsers) -> None:
         description="Validate a fan-curve CSV file, print the parsed curve in SI and in the "
                     "file's units, and write an offline HTML plot with the stall region marked.",
         epilog=_EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
-    check.add_argument("file", metavar="FILE.csv", help="fan-curve file")
-    check.add_argument("--out", metavar="PLOT.html",
-                       help="HTML plot to write (default: FILE.html next to the CSV)")
-    check.add_argument("--no-plot", action="store_true", help="validate and print only")
+    check.add_argument("files", metavar="FILE.csv", nargs="+", help="fan-curve file(s)")
+    check.add_argument("--plot", metavar="PLOT.html",
+                       help="write an offline HTML plot: a file for one fan-curve file, a "
+                            "folder (one PLOT per file, named after it) for several; no plot "
+                            "unless asked")
+    check.add_argument("--out", dest="plot", help=argparse.SUPPRESS)  # the former name
+    check.add_argument("--no-plot", action="store_true", help=argparse.SUPPRESS)  # the default now
     check.set_defaults(func=cmd_check)
 
     def _usage(args) -> int:
@@ -190,25 +194,41 @@ def _write_html(fig, out: Path) -> None:
 
 
 def cmd_check(args) -> int:
-    """Run ``sinkopt fan check``; returns the exit code (InputError propagates: exit 2)."""
+    """Run ``sinkopt fan check``; returns the exit code (InputError propagates: exit 2). Every
+    file is checked before any plot is written."""
     from sinkopt.errors import InputError
     from sinkopt.fans import FanCurveWarning, load_fan_curve
 
-    src = Path(args.file)
-    out = Path(args.out) if args.out else src.with_suffix(".html")
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always", FanCurveWarning)
-        curve = load_fan_curve(src)
-    for w in caught:
-        print(f"sinkopt: warning: {w.message}", file=sys.stderr)
-    if not args.no_plot:
-        if not out.parent.is_dir():
-            raise InputError(f"output folder {str(out.parent)!r} does not exist", field="--out")
-        if out.resolve() == src.resolve():
-            raise InputError("the plot would overwrite the fan-curve file; pass --out",
-                             field="--out")
-    print(format_curve(curve))
-    if not args.no_plot:
+    sources = [Path(f) for f in args.files]
+    plot = Path(args.plot) if args.plot and not args.no_plot else None
+    targets: list[Path] = []
+    if plot is not None:
+        if len(sources) == 1 and plot.suffix.lower() in (".html", ".htm"):
+            targets = [plot]
+        else:
+            if plot.exists() and not plot.is_dir():
+                raise InputError(f"{str(plot)!r} is a file; with several fan files, --plot "
+                                 "names a folder", field="--plot")
+            targets = [plot / (src.stem + ".html") for src in sources]
+        folder = targets[0].parent
+        if not folder.is_dir():
+            raise InputError(f"output folder {str(folder)!r} does not exist", field="--plot")
+        for src, out in zip(sources, targets):
+            if src.exists() and out.resolve() == src.resolve():
+                raise InputError("the plot would overwrite the fan-curve file; pass another "
+                                 "--plot", field="--plot")
+    curves = []
+    for src in sources:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", FanCurveWarning)
+            curves.append(load_fan_curve(src))
+        for w in caught:
+            print(f"sinkopt: warning: {w.message}", file=sys.stderr)
+    for k, curve in enumerate(curves):
+        if k:
+            print()
+        print(format_curve(curve))
+    for curve, out in zip(curves, targets):
         _write_html(fan_curve_figure(curve_plot_data(curve)), out)
         print(f"\nplot written to {out}")
     return 0

@@ -322,6 +322,7 @@ def parse_fan_curve(text: str, source: str = "<text>", *, extend_ends: bool = Tr
     if pw is not None and "power_W" in meta:
         _warn("metadata power_W ignored: the power column is used", source,
               meta_lines["power_W"][0])
+    _check_plausible(q, p, meta, source, (fu, pu), lines)
     return FanCurve(
         q, p,
         name=meta.get("name") or Path(source).stem,
@@ -338,6 +339,42 @@ def parse_fan_curve(text: str, source: str = "<text>", *, extend_ends: bool = Tr
         lines=tuple(lines),
         metadata={k: v for k, (_, v) in meta_lines.items()},
     )
+
+
+#: Highest blade-tip speed of electronics-cooling fans [m/s]: about 40 mm at 30,000 rpm (common
+#: practice, no source). A rotor makes at most about ρ u_tip² of static pressure (a pressure
+#: coefficient ψ = Δp/(ρ u²/2) of 2; real fans stay below about 1.2, from memory), and no
+#: mean velocity through its face above u_tip.
+TIP_SPEED_MAX_M_S = 70.0
+
+
+def _check_plausible(q, p, meta, source, units, lines) -> None:
+    """Warn when a curve's pressures or flows are beyond what a fan of its size and speed can
+    make: the usual cause is a wrong unit in a column name (Pa values under an inH2O header)."""
+    fu, pu = units
+    rho = meta.get("air_density_kg_m3", DEFAULT_AIR_DENSITY_kg_m3)
+    size, rpm = meta.get("size_mm"), meta.get("speed_rpm")
+    if size and rpm:
+        u_tip = np.pi * size * 1e-3 * rpm / 60.0
+        basis = f"its {size:g} mm rotor at {rpm:g} rpm (tip speed {u_tip:.3g} m/s)"
+    else:
+        u_tip = TIP_SPEED_MAX_M_S
+        basis = (f"an electronics-cooling fan (tip speed up to about {u_tip:g} m/s; give "
+                 "'# size_mm:' and '# speed_rpm:' for a sharper check)")
+    p_cap = rho * u_tip ** 2
+    hint = "; are the column units right (e.g. Pa values under an inH2O header)?"
+    if p.max() > p_cap:
+        _warn(f"shut-off pressure {p.max():.4g} Pa ({p.max() / pu.factor:.4g} {pu.name}) is "
+              f"above the {p_cap:.3g} Pa that {basis} can make{hint}", source,
+              lines[int(np.argmax(p))])
+    if size:
+        face = np.pi / 4.0 * (size * 1e-3) ** 2
+        v = q.max() / face
+        if v > u_tip:
+            _warn(f"free delivery {q.max():.4g} m3/s ({q.max() / fu.factor:.4g} {fu.name}) is "
+                  f"{v:.3g} m/s through the {size:g} mm face, above the tip speed of {basis}"
+                  f"{hint.replace('Pa values under an inH2O header', 'm3/h values under a cfm header')}",
+                  source, lines[-1])
 
 
 def load_fan_curve(path, *, extend_ends: bool = True) -> FanCurve:

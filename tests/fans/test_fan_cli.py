@@ -18,9 +18,16 @@ def stall_csv(tmp_path):
     return dst
 
 
-def test_check_writes_offline_html_next_to_csv(stall_csv, capsys):
+def test_check_writes_no_plot_unless_asked(stall_csv, capsys):
+    # issue 16 item 9: nothing is written beside the user's CSV by default
     assert main(["fan", "check", str(stall_csv)]) == 0
-    html = stall_csv.with_suffix(".html")
+    assert sorted(p.name for p in stall_csv.parent.iterdir()) == ["stall.csv"]
+    assert "plot written" not in capsys.readouterr().out
+
+
+def test_check_writes_offline_html_where_asked(stall_csv, tmp_path, capsys):
+    html = tmp_path / "plot.html"
+    assert main(["fan", "check", str(stall_csv), "--plot", str(html)]) == 0
     assert html.exists() and not list(stall_csv.parent.glob("*.tmp"))
     text = html.read_text(encoding="utf-8")
     found = ["Demo axial 80 mm 12 V, stall dip" in text, "stall region" in text]
@@ -57,8 +64,8 @@ def test_fan_without_subcommand_prints_help(capsys):
 def test_check_every_catalog_file(name, tmp_path, capsys):
     src = tmp_path / name
     shutil.copy(CATALOG / name, src)
-    assert main(["fan", "check", str(src)]) == 0
-    assert src.with_suffix(".html").exists()
+    assert main(["fan", "check", str(src), "--plot", str(tmp_path / "p.html")]) == 0
+    assert (tmp_path / "p.html").exists()
     assert "invented demo data, not a real product" in capsys.readouterr().out
 
 
@@ -87,5 +94,24 @@ def test_plot_never_overwrites_the_input(tmp_path):
     src = tmp_path / "fan.html"  # a fan file with an unlucky name
     shutil.copy(CATALOG / "demo-axial-40.csv", src)
     before = src.read_bytes()
-    assert main(["fan", "check", str(src)]) == 2
+    assert main(["fan", "check", str(src), "--plot", str(src)]) == 2
     assert src.read_bytes() == before
+
+
+def test_check_takes_several_files_and_plots_into_a_folder(tmp_path, capsys):
+    files = sorted(CATALOG.glob("*.csv"))[:3]
+    out = tmp_path / "plots"
+    out.mkdir()
+    assert main(["fan", "check", *map(str, files), "--plot", str(out)]) == 0
+    assert sorted(p.name for p in out.iterdir()) == sorted(f.stem + ".html" for f in files)
+    text = capsys.readouterr().out
+    assert all(f"({f})" in text for f in files)
+
+
+def test_several_files_are_all_checked_before_any_plot(tmp_path, capsys):
+    bad = write(tmp_path, "flow_cfm,pressure\n0,1\n2,0\n")
+    out = tmp_path / "plots"
+    out.mkdir()
+    good = CATALOG / "demo-axial-40.csv"
+    assert main(["fan", "check", str(good), str(bad), "--plot", str(out)]) == 2
+    assert list(out.iterdir()) == []

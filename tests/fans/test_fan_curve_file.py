@@ -1,6 +1,8 @@
 """Fan-curve files: good files, warnings, and one clear error per kind of bad file."""
 from __future__ import annotations
 
+import warnings
+
 import numpy as np
 import pytest
 from fan_helpers import write
@@ -215,3 +217,29 @@ def test_duplicate_rows_warning_reaches_cli_stderr(tmp_path, capsys):
 def test_parse_from_text_without_file():
     fan = parse_fan_curve(HEAD + "2,0\n0,9\n1,5\n")
     assert fan.source == "<text>" and fan.lines == (3, 4, 2)
+
+
+def test_implausible_pressure_for_the_fan_size_warns(tmp_path):
+    # issue 16 item 9: Pa values under an inH2O header (26 kPa... as inH2O: 6.5 MPa) for a
+    # 25 cfm, 40 mm fan. Bound: Δp ≤ ρ u_tip² (pressure coefficient 2; real fans ≲ 1.2, from
+    # memory), u_tip = π D n = π · 0.04 m · 150 /s = 18.85 m/s → 426 Pa at 1.2 kg/m³.
+    from sinkopt.fans import FanCurveWarning
+
+    path = write(tmp_path, "# size_mm: 40\n# speed_rpm: 9000\nflow_cfm,pressure_inH2O\n"
+                           "0,260\n10,200\n25,0\n")
+    with pytest.warns(FanCurveWarning, match=r"above the 426 Pa that its 40 mm rotor"):
+        load_fan_curve(path)
+    # the same numbers in Pa are a plausible 40 mm fan: no warning
+    ok = write(tmp_path, "# size_mm: 40\n# speed_rpm: 9000\nflow_cfm,pressure_Pa\n"
+                         "0,260\n10,200\n25,0\n", name="ok.csv")
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", FanCurveWarning)
+        load_fan_curve(ok)
+
+
+def test_implausible_pressure_without_size_uses_the_tip_speed_cap(tmp_path):
+    from sinkopt.fans import FanCurveWarning
+
+    path = write(tmp_path, "flow_cfm,pressure_inH2O\n0,26000\n10,20000\n25,0\n")
+    with pytest.warns(FanCurveWarning, match="give '# size_mm:' and '# speed_rpm:'"):
+        load_fan_curve(path)
