@@ -160,6 +160,14 @@ def describe_problem(problem) -> list[str]:
                    f"{dp[-1]:.4g} Pa at {a.extra_impedance_density:g} kg/m³")
     if a.failed_fan_check:
         out.append("  failed-fan check: also evaluated with one fan of the array stopped")
+    need_w = max(d.center_x + d.size_x / 2 for d in problem.devices) * 1e3
+    need_l = max(d.center_y + d.size_y / 2 for d in problem.devices) * 1e3
+    for key, need in (("width_mm", need_w), ("length_mm", need_l)):
+        v = problem.variable(key)
+        low = v.fixed if v.is_fixed else v.low
+        if need > low + 1e-9:
+            out.append(f"  note: the device footprints need {key.removesuffix('_mm')} >= "
+                       f"{need:.4g} mm: smaller bases searched ({low:g} mm up) are infeasible")
     out += ["", "objectives:"]
     out += [f"  {OBJECTIVES[o][1]} {o} ({OBJECTIVES[o][0]})" for o in problem.objectives]
     lim = problem.limits

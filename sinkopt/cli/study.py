@@ -230,7 +230,43 @@ _CONSTRAINT_TEXT = {
                                        "s short of the required time"),
     "profile_margin_K": ("junction margin at the load profile's peak",
                          "K short of the required margin"),
+    "air_rise_K": ("air temperature rise", "K over the limit"),
+    "noise_dBA": ("fan noise", "dB(A) over the limit"),
+    "width_mm": ("sink width", "mm over the limit"),
+    "length_mm": ("sink length", "mm over the limit"),
+    "height_mm": ("sink height", "mm over the limit"),
+    "mass_kg": ("sink mass", "kg over the limit"),
+    "fan_power_W": ("fan power", "W over the limit"),
+    "pressure_drop_Pa": ("system pressure drop", "Pa over the limit"),
 }
+
+
+def blocking_constraints(constraints: dict, top: int = 6) -> list[str]:
+    """What keeps the trials infeasible: each violated constraint with the share of trials it
+    rejects and by how much (median and least excess), most rejecting first."""
+    import numpy as np
+
+    rows = []
+    n = None
+    for name, values in constraints.items():
+        v = np.asarray(values, dtype=float)
+        n = v.size
+        bad = v > 0
+        if not v.size or not bad.any():
+            continue
+        what, unit = _CONSTRAINT_TEXT.get(name, (name.replace("_", " "), "over the limit"))
+        share = bad.mean()
+        excess = v[bad]
+        if name in ("airflow", "fan_stall"):
+            detail = unit
+        elif np.all(excess >= 1e5):  # the stand-in of a design that could not be evaluated
+            detail = "not evaluated (no operating point or impossible geometry)"
+        else:
+            real = excess[excess < 1e5]
+            detail = f"{np.median(real):.3g} {unit} (median; {real.min():.3g} at least)"
+        rows.append((share, f"{what}: rejects {share:.0%} of {n} trials, {detail}"))
+    rows.sort(key=lambda r: -r[0])
+    return [text for _, text in rows[:top]]
 
 
 def failed_constraints(rec: dict) -> list[str]:
@@ -443,5 +479,7 @@ def cmd_run(args) -> int:
     if n_front == 0:
         print("sinkopt: no feasible design found; see trials.csv for the closest ones",
               file=sys.stderr)
+        for line in blocking_constraints(results.search.constraints):
+            print(f"  {line}", file=sys.stderr)
         return EXIT_INFEASIBLE
     return 0

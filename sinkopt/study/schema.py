@@ -412,6 +412,16 @@ def cross_check(problems: Problems, sink, devices, air, objectives, limits, ambi
                 problems.add(f"{path}.tj_max_C", f"no design can work: tj_max {d.tj_max:g} °C <= "
                              f"ambient {ambient:g} °C + required margin "
                              f"{limits.min_junction_margin_K:g} K")
+    placed = [(i, d) for i, d in enumerate(devices) if d is not None]
+    for a, (i, d) in enumerate(placed):
+        for j, e in placed[a + 1:]:
+            dx = (d.size_x + e.size_x) / 2 - abs(d.center_x - e.center_x)
+            dy = (d.size_y + e.size_y) / 2 - abs(d.center_y - e.center_y)
+            if dx > 1e-9 and dy > 1e-9:  # touching edges are fine; an overlap is not
+                problems.add(f"{item_path('', 'device', j, e.name)}.center_x_mm",
+                             f"the footprint overlaps that of device {d.name} by {dx * 1e3:.3g} mm "
+                             f"across and {dy * 1e3:.3g} mm along the flow; two packages cannot "
+                             "share the base")
     if limits is not None:
         for lim, key in (("max_width_m", "width_mm"), ("max_length_m", "length_mm")):
             v = getattr(limits, lim)
