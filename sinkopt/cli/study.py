@@ -174,6 +174,10 @@ def _print_design(rec: dict) -> None:
     p = rec["params"]
     print("design: " + ", ".join(f"{k}={_fmt(v)}" for k, v in p.items()))
     print(f"  feasible            {rec['feasible']}")
+    if rec.get("fan"):
+        rpm = rec.get("fan_speed_rpm")
+        print(f"  fan                 {rec['fan']} at {_fmt(rec.get('fan_speed_pct'), '%', 3)} of "
+              f"rated speed" + (f" ({rpm:.0f} rpm)" if rpm else ""))
     print(f"  airflow             {_fmt(rec['airflow_m3_s'] and rec['airflow_m3_s'] * 3600, 'm3/h')}"
           f"  ({_fmt(rec['airflow_m3_s'], 'm3/s')})")
     print(f"  system pressure     {_fmt(rec['pressure_drop_Pa'], 'Pa')}")

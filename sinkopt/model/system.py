@@ -160,6 +160,7 @@ class BatchResult:
             "feasible": self.feasible,
             "fan": np.array(self.fan_label, dtype=object),
             "speed_ratio": self.speed_ratio,
+            "fan_speed_pct": self.speed_ratio * 100.0,  # what a person reads: % of rated
             "airflow_m3_s": self.flow_total,
             "airflow_fins_m3_s": self.flow_fins,
             "pressure_drop_Pa": self.system_pressure,

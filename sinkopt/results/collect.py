@@ -59,6 +59,16 @@ def evaluate_command(problem: Problem, params: dict[str, Any]) -> str:
                      *(shlex.quote(s) for s in sets)])
 
 
+def fan_rpm(problem: Problem, label: str, speed_ratio) -> float | None:
+    """The fan's real speed [rpm] at ``speed_ratio`` of rated, where its file gives the rated
+    speed (``# speed_rpm:``); None otherwise."""
+    choice = problem.air.fan_choices().get(label) if label else None
+    rated = getattr(choice[0].curve, "speed_rpm", None) if choice else None
+    if rated is None or speed_ratio is None or not np.isfinite(speed_ratio):
+        return None
+    return round(float(rated * speed_ratio), 0)
+
+
 #: What a design with a single fan says of the one-fan-stopped check.
 SINGLE_FAN_NOTE = ("does not apply: a single fan has no redundancy (with it stopped the sink is in "
                    "still air; see [fans_stopped])")
@@ -92,6 +102,8 @@ def design_record(problem: Problem, result: BatchResult, i: int,
     if result.basis_margin is not None:
         rec["margin_basis"] = result.margin_basis
         rec[f"{result.margin_basis}_margin_K"] = _clean(result.basis_margin[i])
+    rec["fan_speed_pct"] = _clean(cols["fan_speed_pct"][i])
+    rec["fan_speed_rpm"] = fan_rpm(problem, result.fan_label[i], result.speed_ratio[i])
     rec["air_density_kg_m3"] = _clean(e.air_density[i])
     rec["ambient_C"] = problem.conditions.ambient_C
     rec["altitude_m"] = problem.conditions.altitude_m

@@ -76,6 +76,7 @@ RESULT_LABELS = {
     "noise_dBA": ("fan noise", "dB(A)"),
     "fin_gap_mm": ("fin gap", "mm"),
     "sink_resistance_K_per_W": ("sink resistance", "K/W"),
+    "fan_speed_pct": ("fan speed", "% of rated"),
 }
 
 #: Search variables' labels (name -> (label, unit)); mounting variables are labelled on the fly.
@@ -170,6 +171,8 @@ def trial_points(results: Results) -> dict[str, Any]:
     categorical: dict[str, list[str]] = {}
     numeric: dict[str, list[float | None]] = {}
     for v in problem.variables:
+        if v.name == "fan_speed":
+            continue  # the search's internal setting; people read fan_speed_pct
         values = [p.get(v.name, v.fixed) for p in params]
         if v.kind == "categorical":
             categorical[v.name] = [str(x) for x in values]

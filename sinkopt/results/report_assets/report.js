@@ -110,7 +110,7 @@
     var st = P.status[i] === 'pareto' ? 'Pareto design' :
       (P.status[i] === 'feasible' ? 'feasible, dominated' : 'infeasible');
     var lines = ['<b>trial ' + P.trial[i] + '</b> · ' + st + (P.exact[i] ? ' (exact series)' : ' (search model)')];
-    if (c.fan) { lines.push('fan ' + esc(c.fan[i]) + (n.fan_speed ? ', speed setting ' + fmt(n.fan_speed[i], 3) : '')); }
+    if (c.fan) { lines.push('fan ' + esc(c.fan[i]) + (n.fan_speed_pct && n.fan_speed_pct[i] !== null ? ' at ' + fmt(n.fan_speed_pct[i], 3) + ' % of rated speed' : '')); }
     if (n.width_mm) {
       lines.push('W ' + fmt(n.width_mm[i]) + ' × L ' + fmt(n.length_mm[i]) + ' mm, fins H ' +
                  fmt(n.fin_height_mm[i]) + ' mm');
