@@ -77,6 +77,7 @@ class _Fan:
         self.x = [float(v) for v in c.flow_m3_s]
         self.p = [float(v) for v in c.pressure_Pa]
         self.rho_ref = float(c.air_density_kg_m3)
+        self.size = None if c.size_mm is None else c.size_mm * 1e-3  # [m]
         self.pchip = PchipInterpolator(self.x, self.p, extrapolate=False)
         k = len(self.p) - 1  # stall limit: walk back from free delivery while p rises
         while k > 0 and self.p[k - 1] > self.p[k]:
@@ -285,12 +286,29 @@ class ScalarReference:
             theta[j] += sum(an[n] * ry[j][n] for n in range(M))
         return theta
 
+    # ---- fans to fins and discharge (docs/theory.md#fan-to-sink-air-path) -----------------
+    def path_dp(self, fan, count, W, H, Q):
+        air = self.problem.air
+        face = W * H
+        dp = fluids.core.dP_from_K(1.0, self.rho, Q / face) if air.discharge_loss else 0.0
+        if air.fan_to_sink == "none" or fan.size is None:
+            return dp
+        a_fan = count * math.pi / 4.0 * fan.size ** 2
+        if air.fan_to_sink == "plenum":
+            return dp + fluids.core.dP_from_K(1.0, self.rho, Q / a_fan)
+        if a_fan < face:  # Borda–Carnot by the fluids library: sharp diffuser, equal-area diameters
+            k = fluids.fittings.diffuser_sharp(math.sqrt(a_fan), math.sqrt(face))
+            return dp + fluids.core.dP_from_K(k, self.rho, Q / a_fan)
+        return dp + fluids.core.dP_from_K(0.5 * (1.0 - face / a_fan), self.rho, Q / face)
+
     # ---- fan operating point (docs/theory.md#fan-operating-point) ----------------------------------------
     def operating_point(self, fan, count, s, W, L, H, t, N):
         r = self.rho / fan.rho_ref
 
         def g(q):  # fan minus system, per-fan flow q of the parallel array
-            return fan.pressure(q, s, r) - self.sink_dp(W, L, H, t, N, count * max(q, 0.0))
+            Q = count * max(q, 0.0)
+            return (fan.pressure(q, s, r) - self.sink_dp(W, L, H, t, N, Q)
+                    - self.path_dp(fan, count, W, H, Q))
 
         q_lo, q_hi = s * fan.x[fan.k], s * fan.x[-1]
         g_lo, g_hi = g(q_lo), g(q_hi)

@@ -22,6 +22,7 @@ __all__ = [
     "fan_label",
     "FanOption",
     "AirSupply",
+    "FAN_TO_SINK",
     "ProcessLimits",
     "Limits",
     "LoadProfile",
@@ -121,6 +122,12 @@ class AirSupply:
     #: sink blocks in a duct, include the base (docs/theory.md#approach-velocity-and-duct-section).
     base_in_airstream: bool = False
     failed_fan_check: bool = False  #: also evaluate with one fan of the array stopped
+    #: The air path from the fans to the fin field (docs/theory.md#fan-to-sink-air-path):
+    #: ``transition`` (a shroud from the fans' faces to the fin field: sudden expansion or
+    #: contraction), ``plenum`` (the fans' velocity head lost in a plenum), ``none``.
+    fan_to_sink: str = "transition"
+    #: The velocity head at the fin field's outlet face is lost to the room (free discharge).
+    discharge_loss: bool = True
 
     @property
     def uses_fans(self) -> bool:
@@ -142,6 +149,10 @@ class AirSupply:
     def fan_choices(self) -> dict[str, tuple["FanOption", int]]:
         """Every ``fan`` label, in order, with its fan option and count."""
         return {fan_label(f.key, n): (f, n) for f in self.fans for n in f.counts}
+
+
+#: Choices of ``AirSupply.fan_to_sink``.
+FAN_TO_SINK = ("transition", "plenum", "none")
 
 
 @dataclass(frozen=True)

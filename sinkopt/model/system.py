@@ -27,7 +27,7 @@ from sinkopt.model.columns import full_params, stack_choice, to_columns, geometr
 from sinkopt.model.problem import OBJECTIVES, FanOption, Problem
 
 __all__ = ["BatchResult", "evaluate_params", "fan_choices", "full_params", "to_columns",
-           "PENALTY", "system_pressure_drop"]
+           "PENALTY", "system_pressure_drop", "fan_path_dp", "fan_face_area", "STALL_MARGIN"]
 
 #: Finite stand-in for objectives and constraints of a design that cannot be evaluated (no fan
 #: operating point, a geometry that cannot exist); Optuna rejects NaN and such designs are marked
@@ -90,9 +90,60 @@ def _impedance_dp(problem: Problem, q, density):
     return dp
 
 
-def system_pressure_drop(problem: Problem, geometry: SinkGeometry, q, air, options: ModelOptions):
+#: Air path from the fans to the fin field: sudden-expansion (Borda–Carnot) and
+#: sudden-contraction loss coefficients (docs/theory.md#fan-to-sink-air-path).
+def fan_path_dp(problem: Problem, g: SinkGeometry, q, density, fan_area) -> np.ndarray:
+    """Static pressure lost between the fans and the fin field and at the free discharge [Pa],
+    at total flows ``q`` through fans of total face area ``fan_area`` [m²] (NaN: unknown size,
+    no transition loss). Zero for a known flow (no fans)."""
+    a = problem.air
+    q = np.asarray(q, dtype=float)
+    dp = np.zeros_like(q)
+    if not a.uses_fans:
+        return dp
+    face = g.width * g.fin_height  # the fin field's face, where the shroud meets the sink
+    v_face = q / face
+    head_face = 0.5 * density * v_face ** 2
+    if a.discharge_loss:
+        dp = dp + head_face  # K = 1: the outlet's velocity head leaves with the air
+    if a.fan_to_sink == "none" or fan_area is None:
+        return dp
+    area = np.asarray(fan_area, dtype=float)
+    known = np.isfinite(area) & (area > 0)
+    safe = np.where(known, area, 1.0)
+    head_fan = 0.5 * density * (q / safe) ** 2
+    if a.fan_to_sink == "plenum":
+        k_dp = head_fan  # the fans' jets dissipate in the plenum (K = 1 on the fan velocity)
+    else:
+        ratio = safe / face
+        # expansion (fan face smaller): Borda–Carnot K = (1 − A_fan/A_face)² on V_fan;
+        # contraction (fan face larger): K = 0.5 (1 − A_face/A_fan) on V_face
+        k_dp = np.where(ratio < 1.0, (1.0 - ratio) ** 2 * head_fan,
+                        0.5 * (1.0 - 1.0 / np.maximum(ratio, 1.0)) * head_face)
+    return dp + np.where(known, k_dp, 0.0)
+
+
+def fan_face_area(problem: Problem, labels, failed: int = 0) -> np.ndarray:
+    """Total face area [m²] of the running fans of each design's ``fan`` label (π/4 size² per
+    fan from the file's ``# size_mm:``; NaN where the size is unknown). Series fans share one
+    face."""
+    choices = problem.air.fan_choices()
+    out = np.full(len(labels), np.nan)
+    for i, label in enumerate(labels):
+        choice = choices.get(label)
+        if choice is None or choice[0].curve.size_mm is None:
+            continue
+        option, count = choice
+        running = 1 if option.arrangement == "series" else max(count - failed, 1)
+        out[i] = running * np.pi / 4.0 * (option.curve.size_mm * 1e-3) ** 2
+    return out
+
+
+def system_pressure_drop(problem: Problem, geometry: SinkGeometry, q, air, options: ModelOptions,
+                         fan_area=None):
     """System static pressure drop [Pa] at total flows q (n,): sink (ducted, or in a duct with a
-    lossless bypass) plus the study's extra losses. Returns (dp, flow through the fins)."""
+    lossless bypass), the air path from the fans (``fan_area``: their face area per design,
+    :func:`fan_face_area`) and the study's extra losses. Returns (dp, flow through the fins)."""
     g = geometry
     q = np.asarray(q, dtype=float)
 
@@ -108,7 +159,8 @@ def system_pressure_drop(problem: Problem, geometry: SinkGeometry, q, air, optio
         q_fins = q * flow_fraction_lossless_bypass(sink_dp, g, q, problem.air.duct_area_m2,
                                                    air.density,
                                                    base_in_airstream=problem.air.base_in_airstream)
-    return sink_dp(q_fins) + _impedance_dp(problem, q, air.density), q_fins
+    return (sink_dp(q_fins) + _impedance_dp(problem, q, air.density)
+            + fan_path_dp(problem, g, q, air.density, fan_area)), q_fins
 
 
 @dataclass
@@ -137,6 +189,8 @@ class BatchResult:
     failed_fan_junction_C: np.ndarray | None = None
     failed_fan_flow: np.ndarray | None = None
     failed_fan_applies: np.ndarray | None = None
+    #: Operating point within STALL_MARGIN above the fan's stall knee (not in stall).
+    near_stall: np.ndarray | None = None
     extras: dict[str, np.ndarray] = field(default_factory=dict)
     #: The margin the constraint and objective use when the study's margin basis is not
     #: "nominal": the worst margin at the pessimistic corner, or its first-order 5th percentile.
@@ -197,6 +251,9 @@ class BatchResult:
         out = self.evaluation.warnings(i)
         if self.in_stall[i]:
             out.append("fan operates in its stall region (unstable, noisy)")
+        elif self.near_stall is not None and self.near_stall[i]:
+            out.append(f"fan operates within {STALL_MARGIN:.0%} of its stall knee's flow: a "
+                       "dirty filter or a tolerance on the system curve can push it into stall")
         if self.no_airflow[i]:
             out.append("no fan operating point inside the fan data: the fan cannot move air "
                        "through this system")
@@ -228,7 +285,8 @@ def _fan_codes(problem: Problem, cols, n: int) -> tuple[list[str], np.ndarray]:
     return names, code
 
 
-def _system_dp_function(problem: Problem, g: SinkGeometry, air, options: ModelOptions):
+def _system_dp_function(problem: Problem, g: SinkGeometry, air, options: ModelOptions,
+                        fan_area=None):
     """``dp(Q, index)`` of :func:`solve_operating_points`: :func:`system_pressure_drop` of the
     sinks ``g`` (designs ``index`` of them, or all) with the geometry-only work done once."""
     sink_dp = hs.sink_pressure_drop_function(g.width, g.length, g.fin_height, g.fin_thickness,
@@ -238,7 +296,8 @@ def _system_dp_function(problem: Problem, g: SinkGeometry, air, options: ModelOp
     a = problem.air
     extra = bool((a.extra_loss_coefficient and a.extra_loss_area_m2)
                  or a.extra_impedance is not None)
-    if a.ducted and not extra:
+    path = a.uses_fans and (a.discharge_loss or a.fan_to_sink != "none")
+    if a.ducted and not extra and not path:
         return sink_dp
     density = air.density
     taken: list = [None, None]
@@ -258,7 +317,12 @@ def _system_dp_function(problem: Problem, g: SinkGeometry, air, options: ModelOp
                                                        q, a.duct_area_m2, density,
                                                        base_in_airstream=a.base_in_airstream)
         dp = sink_dp(q_fins, index)
-        return dp + _impedance_dp(problem, q, density) if extra else dp
+        if extra:
+            dp = dp + _impedance_dp(problem, q, density)
+        if path:
+            area = None if fan_area is None else (fan_area if index is None else fan_area[index])
+            dp = dp + fan_path_dp(problem, sub(index), q, density, area)
+        return dp
 
     return system_dp
 
@@ -314,7 +378,9 @@ def _solve_fans(problem, cols, g, air, options, valid, failed=0, fan_codes=None,
             c = np.broadcast_to(np.asarray(fan_flow, dtype=float), (n,))[sel]
             solve_speed, density = s * c, density / (c * c)
         sub_options = options if sel.size == n else _options_take(options, sel)
-        op = solve_operating_points(arrays, gsel, _system_dp_function(problem, sub, air, sub_options),
+        area_group = fan_face_area(problem, [names[i] for i in usable], failed=failed)
+        op = solve_operating_points(arrays, gsel, _system_dp_function(problem, sub, air, sub_options,
+                                                                      area_group[gsel]),
                                     speed_ratio=solve_speed, air_density=density,
                                     efficiency=efficiency)
         flow[sel], dp[sel] = op.flow_m3_s, op.pressure_Pa
@@ -322,6 +388,28 @@ def _solve_fans(problem, cols, g, air, options, valid, failed=0, fan_codes=None,
         stall[sel] = op.in_stall
     labels = np.array(names, dtype=object)[code].tolist()
     return flow, dp, power, noise, speed, stall, labels, (names, code)
+
+
+#: An operating point within this share above the stall knee's flow is flagged (common practice,
+#: no source: fan data scatter and the system curve's uncertainty are of this order).
+STALL_MARGIN = 0.15
+
+
+def _near_stall(problem, labels, speed, flow) -> np.ndarray:
+    """Operating points within STALL_MARGIN above the stall knee: the knee's flow scales with
+    the speed (fan laws) and with the number of fans in parallel."""
+    choices = problem.air.fan_choices()
+    knee = {}
+    for label, (option, count) in choices.items():
+        curve = option.curve
+        if getattr(curve, "has_stall_region", False):
+            knee[label] = curve.q_stall_limit_m3_s * (count if option.arrangement == "parallel"
+                                                      else 1)
+    if not knee:
+        return np.zeros(len(flow), dtype=bool)
+    q_knee = np.array([knee.get(k, np.nan) for k in labels], dtype=float) * speed
+    with np.errstate(invalid="ignore"):
+        return np.asarray(flow < (1.0 + STALL_MARGIN) * q_knee) & np.isfinite(q_knee)
 
 
 def _fin_flow(problem, g, flow, air, options):
@@ -382,6 +470,7 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None,
                                                                           options, valid,
                                                                           fan_flow=fan_flow)
         flow_fins = _fin_flow(problem, safe, flow, air, options)
+        near_stall = _near_stall(problem, labels, speed, flow) & ~stall
     else:
         if problem.air.fixed_flow_m3_s is not None:
             flow = np.full(n, problem.air.fixed_flow_m3_s)
@@ -392,6 +481,7 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None,
         noise = np.full(n, np.nan)
         speed = np.full(n, np.nan)
         stall = np.zeros(n, dtype=bool)
+        near_stall = np.zeros(n, dtype=bool)
         labels = [""] * n
     no_air = ~np.isfinite(flow_fins) | ~(flow_fins > 0)
     with np.errstate(invalid="ignore", divide="ignore"):
@@ -419,6 +509,7 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None,
     if problem.limits.margin_basis != "nominal" and perturb is None:
         result.margin_basis = problem.limits.margin_basis
         result.basis_margin = np.where(bad, -PENALTY, _robust_margin(problem, cols, spreading, ev))
+    result.near_stall = near_stall
     if perturb is None:
         result.extras = _dynamics(problem, safe, ev, mounts, bad)
     result.constraints = _constraints(problem, result, g, bad)

@@ -19,7 +19,8 @@ from optuna.trial import TrialState
 
 from sinkopt.search.pareto import nondominated_mask, to_minimization
 from sinkopt.model.problem import OBJECTIVES, Problem
-from sinkopt.model.system import BatchResult, evaluate_params
+from sinkopt.model.columns import geometry_of
+from sinkopt.model.system import BatchResult, evaluate_params, fan_face_area, fan_path_dp
 from sinkopt.model.fans_stopped import StillAirResult, fans_stopped_of
 from sinkopt.model.load_profile import ProfileResult, profile_of
 from sinkopt.model.uncertainty import Band, junction_band
@@ -102,6 +103,11 @@ def design_record(problem: Problem, result: BatchResult, i: int,
     if result.basis_margin is not None:
         rec["margin_basis"] = result.margin_basis
         rec[f"{result.margin_basis}_margin_K"] = _clean(result.basis_margin[i])
+    if problem.air.uses_fans and np.isfinite(result.flow_total[i]):
+        area = fan_face_area(problem, [result.fan_label[i]])
+        g1 = geometry_of(problem, {k: np.asarray([v]) for k, v in result.params[i].items()})
+        rec["fan_path_loss_Pa"] = _clean(fan_path_dp(problem, g1, result.flow_total[i:i + 1],
+                                                     float(e.air_density[i]), area)[0])
     rec["fan_speed_pct"] = _clean(cols["fan_speed_pct"][i])
     rec["fan_speed_rpm"] = fan_rpm(problem, result.fan_label[i], result.speed_ratio[i])
     rec["air_density_kg_m3"] = _clean(e.air_density[i])

@@ -29,7 +29,8 @@ from sinkopt.fans import FanArray
 from sinkopt.model.known_flow import inlet_air
 from sinkopt.model.problem import GEOMETRY_VARIABLES, OBJECTIVES, Problem
 from sinkopt.results.collect import Results
-from sinkopt.model.system import PENALTY, evaluate_params, fan_choices, full_params, system_pressure_drop
+from sinkopt.model.system import (PENALTY, evaluate_params, fan_choices, fan_face_area, full_params,
+                                  system_pressure_drop)
 
 __all__ = [
     "OBJECTIVE_LABELS",
@@ -369,8 +370,8 @@ def fan_curves(problem: Problem, n_points: int = 80,
 
 def system_curves(problem: Problem, params_list: Sequence[dict[str, Any]], flows
                   ) -> np.ndarray:
-    """System static pressure drop [Pa] of each design (sink and the study's extra losses, at
-    the site air) at its own flows, in one vectorised call.
+    """System static pressure drop [Pa] of each design (sink, the air path from the fans and
+    the study's extra losses, at the site air) at its own flows, in one vectorised call.
 
     Parameters
     ----------
@@ -391,9 +392,12 @@ def system_curves(problem: Problem, params_list: Sequence[dict[str, Any]], flows
         return np.zeros((0, n))
     params_list = [full_params(problem, p) for p in params_list]
     g = _geometries(params_list).take(np.repeat(np.arange(m), n))
+    area = None
+    if problem.air.uses_fans:
+        area = np.repeat(fan_face_area(problem, [p.get("fan") for p in params_list]), n)
     with np.errstate(invalid="ignore", divide="ignore"):
         dp, _ = system_pressure_drop(problem, g, q.ravel(), inlet_air(problem.conditions),
-                                     problem.options)
+                                     problem.options, fan_area=area)
     return np.asarray(dp, dtype=float).reshape(m, n)
 
 
@@ -580,7 +584,7 @@ def sink_drawing(params: dict[str, Any], devices: Sequence[dict[str, Any]] = (),
 
 #: Key numbers of a Pareto design that the points lack (the page reads the others there).
 DESIGN_KEYS = ("air_outlet_C", "fin_aspect", "channel_velocity_m_s",
-               "heat_transfer_coefficient_W_m2K", "fin_efficiency")
+               "heat_transfer_coefficient_W_m2K", "fin_efficiency", "fan_path_loss_Pa")
 #: Per-device values of a Pareto design (``mounting``: index into the device's mountings in
 #: the study inputs, or the name when it is not one of them; then the junction, the margin and
 #: the temperature breakdown [K] from the inlet air to the junction).

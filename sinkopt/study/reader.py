@@ -38,7 +38,7 @@ from sinkopt.study.calibration_file import read_calibration
 from sinkopt.study.profile_file import read_profile
 from sinkopt.model.design import Conditions, Device, ModelOptions, MountingStack, SlabLayer, ViaLayer
 from sinkopt.errors import InputError
-from sinkopt.model.problem import (DEFAULT_SAMPLER, GEOMETRY_VARIABLES, OBJECTIVES,
+from sinkopt.model.problem import (DEFAULT_SAMPLER, FAN_TO_SINK, GEOMETRY_VARIABLES, OBJECTIVES,
                                    PROFILE_STARTS, SAMPLERS, AirSupply, FanOption, Limits, Problem,
                                    ProcessLimits, StillAir, Variable, fan_label)
 from sinkopt.study.schema import (PROCESS_KEYS, PROCESS_PRESETS, Problems, Table, cross_check,
@@ -68,7 +68,7 @@ _FLOW_KEYS = {"flow_m3_per_h": 1 / 3600, "flow_m3_per_s": 1.0, "flow_cfm": 4.719
 _AIR_KEYS = ("fan", *_FLOW_KEYS, "approach_velocity_m_per_s", "base_in_airstream", "ducted",
              "duct_width_mm",
              "duct_height_mm", "extra_loss_coefficient", "extra_loss_area_mm2",
-             "extra_impedance_file", "failed_fan_check")
+             "extra_impedance_file", "failed_fan_check", "fan_to_sink", "discharge_loss")
 _FAN_KEYS = ("file", "count", "arrangement", "speed", "efficiency")
 _CONSTRAINT_KEYS = ("min_junction_margin_K", "max_air_rise_K", "max_noise_dBA", "max_width_mm",
                     "max_length_mm", "max_height_mm", "max_mass_kg", "max_fan_power_W",
@@ -506,6 +506,15 @@ def _air(root: Table, base_dir: Path, inputs: list[Path]):
                 ok = False
     failed = t.boolean("failed_fan_check", default=False)
     kw["failed_fan_check"] = failed
+    kw["fan_to_sink"] = t.text("fan_to_sink", default="transition", choices=FAN_TO_SINK)
+    kw["discharge_loss"] = t.boolean("discharge_loss", default=True)
+    if kw["fan_to_sink"] is None or kw["discharge_loss"] is None:
+        ok = False
+    elif "fan" not in data and ("fan_to_sink" in data or "discharge_loss" in data):
+        t.add("fan_to_sink" if "fan_to_sink" in data else "discharge_loss",
+              "describes the air path from fans: needs [[air.fan]] entries (a known airflow "
+              "already is the flow through the sink)")
+        ok = False
     if None in (ducted, failed) or "extra_impedance_file" in data and file is None:
         ok = False
     if failed and fans:

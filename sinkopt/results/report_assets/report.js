@@ -694,6 +694,7 @@
     ['noise_dBA', 'fan noise (estimate)', 'dB(A)', 1],
     ['airflow_m3_s', 'airflow', 'm³/h', 3600],
     ['pressure_drop_Pa', 'system pressure drop', 'Pa', 1],
+    ['fan_path_loss_Pa', 'of it, the air path (fans to fins, discharge)', 'Pa', 1],
     ['sink_resistance_K_per_W', 'sink resistance (base to inlet air)', 'K/W', 1],
     ['worst_margin_K', 'worst junction margin', 'K', 1],
     ['air_rise_K', 'air temperature rise', 'K', 1],
@@ -835,7 +836,7 @@
       var v = value(trial, k[0]);
       if (v === undefined) { v = null; }
       if (k[0] === 'noise_dBA' && v === null) { return; }
-      if (k[0] === 'speed_ratio' && v === null) { return; }
+      if ((k[0] === 'speed_ratio' || k[0] === 'fan_path_loss_Pa') && v === null) { return; }
       if (!fan && (k[0] === 'fan_power_W' || k[0] === 'noise_dBA')) { return; }
       keys.appendChild(keyBox(k[0], k[1], v === null ? null : v * k[3], k[2]));
     });
