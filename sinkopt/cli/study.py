@@ -324,10 +324,15 @@ class _Progress:
     def __init__(self, total: int, enabled: bool):
         self.bar = None
         if enabled:
+            import shutil
+
             from tqdm import tqdm
 
+            # A terminal that reports no size (0 x 0: some IDE consoles, a bare pty) made the
+            # bar print nothing at all; shutil falls back to 80 x 24 there.
+            size = shutil.get_terminal_size(fallback=(80, 24))
             self.bar = tqdm(total=total, unit="trial", disable=None, file=sys.stderr,
-                            dynamic_ncols=True)
+                            ncols=min(size.columns, 120), nrows=size.lines)
 
     def __call__(self, p) -> None:
         if self.bar is None:
@@ -438,6 +443,7 @@ def cmd_run(args) -> int:
         print(f"sinkopt: {stale} trial(s) left running by a stopped run were failed and queued "
               "again", file=sys.stderr)
     progress = _Progress(n_trials, not args.no_progress)
+    interactive = progress.bar is not None and not progress.bar.disable  # a terminal
     start = time.monotonic()
     interrupted = False
     try:
@@ -457,6 +463,11 @@ def cmd_run(args) -> int:
         interrupted = True
     finally:
         progress.close()
+    if interactive:
+        print("sinkopt: reviewing the front (exact series, uncertainty band"
+              + (", fans-stopped checks" if problem.still_air is not None else "")
+              + (", load profile" if problem.load_profile is not None else "") + ")...",
+              file=sys.stderr)
     results = collect_results(problem, study)
     info = run_info(problem, seed=seed, sampler=sampler, n_trials=n_trials,
                     command=sys.argv, storage_url=args.storage,
