@@ -238,7 +238,14 @@ def table_columns(problem: Problem, records: Sequence[dict[str, Any]]) -> list[d
                    "pressure_drop_Pa", "air_rise_K"):
         if column not in shown:
             label, unit = RESULT_LABELS[column]
-            columns.append({"key": column, "label": label, "unit": unit, "kind": "number"})
+            col = {"key": column, "label": label, "unit": unit, "kind": "number"}
+            if column == "airflow_m3_s":  # people size fans in m³/h (or cfm: a toggle)
+                col.update(unit="m³/h", scale=3600.0, alt_unit="cfm", alt_scale=2118.880003)
+            columns.append(col)
+    for v in problem.variables:
+        if v.name.startswith("mount_") and not v.is_fixed:
+            columns.append({"key": v.name, "label": f"mounting {v.name[len('mount_'):]}",
+                            "unit": "", "kind": "text"})
     columns.append({"key": "n_warnings", "label": "warnings", "unit": "", "kind": "int"})
     return columns
 

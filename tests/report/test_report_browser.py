@@ -473,3 +473,51 @@ def test_design_opened_while_plotly_loads(browser, demo_dir):
     assert page.locator("#breakdown .barlayer .point").count() > 0
     assert page.locator("#pareto2d .point").count() > 0
     b.assert_clean()
+
+
+def test_readable_at_1366_px(browser, demo_dir):
+    # issue 16 item 10: the trial column stays in view, airflow in m³/h (cfm on request), the
+    # margin axis is not stretched by infeasible trials, the last parallel axis keeps its title
+    b = browser(width=1366)
+    page = b.open(demo_dir / "report.html")
+    box = page.locator("#pareto-table-box")
+    assert page.evaluate("""() => getComputedStyle(document.querySelector(
+        '#pareto-table tbody td:first-child')).position""") == "sticky"
+    head = page.text_content("#pareto-table th[data-key='airflow_m3_s']")
+    assert "m³/h" in head
+    first = page.evaluate("""() => Number(document.querySelector('#pareto-table tbody tr')
+        .children[[...document.querySelectorAll('#pareto-table th')]
+        .findIndex(th => th.dataset.key === 'airflow_m3_s')].dataset.raw)""")
+    page.check("#table-alt-units")
+    assert "cfm" in page.text_content("#pareto-table th[data-key='airflow_m3_s']")
+    cell = page.evaluate("""() => Number(document.querySelector('#pareto-table tbody tr')
+        .children[[...document.querySelectorAll('#pareto-table th')]
+        .findIndex(th => th.dataset.key === 'airflow_m3_s')].dataset.v)""")
+    # m³/s to cfm: 1 cfm = 0.3048³/60 m³/s (exact), the page carries 7 digits of the factor
+    assert cell == pytest.approx(first * 60 / 0.3048 ** 3, rel=1e-6)
+    # the margin axis spans the feasible designs (with a margin), not the worst infeasible one
+    data = json.loads(page.text_content("#sinkopt-data"))
+    points = data["pareto"]["points"]
+    margins = points["numeric"]["worst_margin_K"]
+    feasible = [m for m, s in zip(margins, points["status"]) if s != "infeasible" and m is not None]
+    margin_axis = page.evaluate("""() => [...document.querySelectorAll('#sel-y option')]
+        .map(o => o.value).find(v => /margin/.test(v))""")
+    page.select_option("#sel-y", margin_axis)
+    page.wait_for_function("""() => { const a = document.getElementById('pareto2d').layout.yaxis;
+        return a.title && /margin/.test(a.title.text); }""")
+    rng = page.evaluate("() => document.getElementById('pareto2d').layout.yaxis.range")
+    worst = min(m for m in margins if m is not None)
+    assert worst < min(feasible) - 100  # the fixture has far-off infeasible trials (-406 K)
+    assert rng[0] > worst
+    assert rng[0] <= min(feasible) and rng[1] >= max(feasible)
+    b.assert_clean()
+
+
+def test_mounting_choices_are_table_columns():
+    from sinkopt.results.report_data import table_columns
+    from sinkopt.study.reader import load_study
+
+    problem = load_study(ROOT / "studies" / "demo_mounting.toml")
+    keys = [c["key"] for c in table_columns(problem, [])]
+    mounts = [v.name for v in problem.variables if v.name.startswith("mount_") and not v.is_fixed]
+    assert mounts and all(m in keys for m in mounts)

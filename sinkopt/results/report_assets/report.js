@@ -228,8 +228,33 @@
   }
 
   function axisLayout(id, log) {
-    return {title: {text: esc(axis(id).title)}, type: log ? 'log' : 'linear', gridcolor: '#e3e5e8',
-            zerolinecolor: '#c9ccd0', linecolor: '#9aa0a6', showline: true, mirror: true};
+    return Object.assign({title: {text: esc(axis(id).title)}, type: log ? 'log' : 'linear', gridcolor: '#e3e5e8',
+            zerolinecolor: '#c9ccd0', linecolor: '#9aa0a6', showline: true, mirror: true},
+            log ? {} : focusRange(id));
+  }
+  /* Break a title into lines of about n characters at spaces. */
+  function wrapTitle(text, n) {
+    var out = [], line = '';
+    text.split(' ').forEach(function (w) {
+      if (line && (line + ' ' + w).length > n) { out.push(line); line = w; } else { line = line ? line + ' ' + w : w; }
+    });
+    if (line) { out.push(line); }
+    return out.join('<br>');
+  }
+  /* The axis range of the feasible designs (with a margin) when infeasible trials lie far
+     outside it (a design that misses its margin by 2000 K flattened the front); those trials
+     are then off the plot (zoom out, or the table and trials.csv, show them). */
+  function focusRange(id) {
+    var v = axis(id).values, lo = Infinity, hi = -Infinity, all_lo = Infinity, all_hi = -Infinity;
+    v.forEach(function (x, i) {
+      if (x === null || !isFinite(x)) { return; }
+      all_lo = Math.min(all_lo, x); all_hi = Math.max(all_hi, x);
+      if (P.status[i] !== 'infeasible') { lo = Math.min(lo, x); hi = Math.max(hi, x); }
+    });
+    if (!isFinite(lo) || !isFinite(hi)) { return {}; }
+    var span = Math.max(hi - lo, Math.abs(hi) * 0.05, 1e-9);
+    if (all_lo >= lo - span && all_hi <= hi + span) { return {}; }
+    return {range: [lo - 0.25 * span, hi + 0.25 * span], autorange: false};
   }
 
   function draw2d() {
@@ -247,8 +272,10 @@
     if (!has3d || !HAVE_PLOTLY || !state.ready3d) { return Promise.resolve(); }
     var keys = [state.x, state.y, state.z];
     function ax(id) {
-      return {title: {text: esc(axis(id).title)}, gridcolor: '#dfe2e5', backgroundcolor: '#fbfbfa',
-              showbackground: true};
+      // short lines, small type: long titles of neighbouring axes overlapped at 1366 px
+      return Object.assign({title: {text: wrapTitle(esc(axis(id).title), 22), font: {size: 11}},
+              gridcolor: '#dfe2e5', backgroundcolor: '#fbfbfa', showbackground: true},
+              focusRange(id));
     }
     var layout = {font: FONT, height: 500, paper_bgcolor: 'rgba(0,0,0,0)',
                   margin: {l: 0, r: 0, t: 30, b: 0}, showlegend: false,
@@ -1083,6 +1110,7 @@
     var d = DS.by_trial[String(trial)];
     if (key === 'trial') { return trial; }
     if (key === 'fan') { return fanOf(INDEX[trial]); }
+    if (P.categorical[key]) { return P.categorical[key][INDEX[trial]]; }
     if (key === 'n_warnings') { return d ? d.warnings.length : null; }
     var v = value(trial, key);
     return v === undefined ? null : v;
@@ -1099,10 +1127,31 @@
     var t = el('table', {id: 'pareto-table', 'class': 'sortable'});
     var head = el('tr');
     cols.forEach(function (c) {
-      var th = el('th', {scope: 'col', 'data-kind': c.kind, 'aria-sort': 'none'});
+      var th = el('th', {scope: 'col', 'data-kind': c.kind, 'aria-sort': 'none', 'data-key': c.key});
       th.appendChild(el('button', {type: 'button'}, c.label + unitText(c.unit)));
       head.appendChild(th);
     });
+    var alt = cols.filter(function (c) { return c.alt_unit; });
+    if (alt.length) {  // airflow in cfm on request
+      var lab = el('label', {'class': 'hint', id: 'table-units'});
+      var cb = el('input', {type: 'checkbox', id: 'table-alt-units'});
+      lab.appendChild(cb);
+      lab.appendChild(document.createTextNode(' airflow in ' + alt[0].alt_unit));
+      box.appendChild(lab);
+      cb.addEventListener('change', function () {
+        alt.forEach(function (c) {
+          var k = cols.indexOf(c), on = cb.checked;
+          var th = t.querySelectorAll('thead th')[k];
+          th.querySelector('button').textContent = c.label + unitText(on ? c.alt_unit : c.unit);
+          t.querySelectorAll('tbody tr').forEach(function (tr) {
+            var td = tr.children[k], raw = td.getAttribute('data-raw');
+            var v = raw === '' ? null : Number(raw) * (on ? c.alt_scale : c.scale);
+            td.setAttribute('data-v', v === null ? '' : String(v));
+            td.textContent = fmt(v);
+          });
+        });
+      });
+    }
     var thead = el('thead');
     thead.appendChild(head);
     t.appendChild(thead);
@@ -1110,8 +1159,10 @@
     DS.trials.forEach(function (trial) {
       var tr = el('tr', {'data-trial': String(trial), tabindex: '0'});
       cols.forEach(function (c) {
-        var v = tableValue(trial, c.key);
-        var td = el('td', {'data-v': v === null ? '' : String(v)}, fmt(v));
+        var raw = tableValue(trial, c.key);
+        var v = raw !== null && c.scale ? raw * c.scale : raw;
+        var td = el('td', {'data-v': v === null ? '' : String(v),
+                           'data-raw': raw === null ? '' : String(raw)}, fmt(v));
         tr.appendChild(td);
       });
       frag.appendChild(tr);
@@ -1182,7 +1233,7 @@
                  labelside: 'bottom', labelfont: {size: 11}, tickfont: {size: 10},
                  rangefont: {size: 9}};
     return {data: [trace], layout: {font: FONT, paper_bgcolor: 'rgba(0,0,0,0)', height: 460,
-                                    margin: {l: 150, r: 60, t: 40, b: 90}}};
+                                    margin: {l: 150, r: 150, t: 40, b: 90}}};
   }
 
   function setupParcoords() {
