@@ -299,6 +299,21 @@ def _schedule(p_segments):
     return starts, power
 
 
+def _start(G, C, P_segments, T0, modes, *extra_shapes):
+    """Shared set-up of the solvers: the schedule, the batch shape, the modes and the modal
+    initial state z0 (broadcast to the batch)."""
+    starts, power = _schedule(P_segments)
+    g = np.asarray(G, dtype=float)
+    c = np.asarray(C, dtype=float)
+    n = g.shape[-1]
+    batch = np.broadcast_shapes(g.shape[:-2], c.shape[:-1], power.shape[:-2], *extra_shapes,
+                                () if T0 is None else np.shape(T0)[:-1])
+    lam, v, s = modes if modes is not None else _modes(g, c)
+    t0 = np.zeros(batch + (n,)) if T0 is None else np.asarray(T0, dtype=float)
+    z = np.broadcast_to(np.einsum("...ni,...n->...i", v, t0 / s), batch + (n,))
+    return starts, power, batch, n, lam, v, s, z
+
+
 def simulate(G, C, P_segments, t_out, T0=None, modes=None):
     r"""Exact temperature rises of a linear RC network under piecewise-constant power.
 
@@ -337,17 +352,8 @@ def simulate(G, C, P_segments, t_out, T0=None, modes=None):
     >>> round(float(simulate([[0.5]], [3.0], ([0.0], [[1.0]]), [6.0])[0, 0]), 7)
     1.2642411
     """
-    starts, power = _schedule(P_segments)
-    g = np.asarray(G, dtype=float)
-    c = np.asarray(C, dtype=float)
     t_out = np.atleast_1d(np.asarray(t_out, dtype=float))
-    n = g.shape[-1]
-    batch = np.broadcast_shapes(g.shape[:-2], c.shape[:-1], power.shape[:-2],
-                                () if T0 is None else np.shape(T0)[:-1])
-    lam, v, s = modes if modes is not None else _modes(g, c)
-    t0 = np.zeros(batch + (n,)) if T0 is None else np.asarray(T0, dtype=float)
-    z = np.einsum("...ni,...n->...i", v, t0 / s)
-    z = np.broadcast_to(z, batch + (n,))
+    starts, power, batch, n, lam, v, s, z = _start(G, C, P_segments, T0, modes)
     out = np.empty(batch + (t_out.size, n))
     m = starts.size
     for j in range(m):
@@ -408,17 +414,9 @@ def time_to_limit(G, C, P_segments, limit, node=0, T0=None, t_end=None, grid_poi
     >>> round(float(time_to_limit([[0.5]], [3.0], ([0.0], [[1.0]]), 1.0)), 6)
     4.158883
     """
-    starts, power = _schedule(P_segments)
-    g = np.asarray(G, dtype=float)
-    c = np.asarray(C, dtype=float)
-    n = g.shape[-1]
-    batch = np.broadcast_shapes(g.shape[:-2], c.shape[:-1], power.shape[:-2], np.shape(limit),
-                                () if T0 is None else np.shape(T0)[:-1])
+    starts, power, batch, n, lam, v, s, z = _start(G, C, P_segments, T0, modes, np.shape(limit))
     limit = np.broadcast_to(np.asarray(limit, dtype=float), batch)
-    lam, v, s = modes if modes is not None else _modes(g, c)
     lam = np.broadcast_to(lam, batch + (n,))
-    t0 = np.zeros(batch + (n,)) if T0 is None else np.asarray(T0, dtype=float)
-    z = np.broadcast_to(np.einsum("...ni,...n->...i", v, t0 / s), batch + (n,))
     row = np.broadcast_to(s[..., node, None] * v[..., node, :], batch + (n,))  # T_node = row·z
     positive = lam[lam > 0.0]
     if t_end is None and (positive.size < lam.size):
@@ -540,17 +538,9 @@ def peak_rise(G, C, P_segments, t_end, nodes, T0=None, points=32, modes=None):
     >>> round(float(peak[0]), 7), round(float(when[0]), 6)
     (1.2642411, 6.0)
     """
-    starts, power = _schedule(P_segments)
-    g = np.asarray(G, dtype=float)
-    c = np.asarray(C, dtype=float)
     nodes = np.atleast_1d(np.asarray(nodes, dtype=int))
-    n = g.shape[-1]
-    batch = np.broadcast_shapes(g.shape[:-2], c.shape[:-1], power.shape[:-2],
-                                () if T0 is None else np.shape(T0)[:-1])
-    lam, v, s = modes if modes is not None else _modes(g, c)
+    starts, power, batch, n, lam, v, s, z = _start(G, C, P_segments, T0, modes)
     lam = np.broadcast_to(lam, batch + (n,))
-    t0 = np.zeros(batch + (n,)) if T0 is None else np.asarray(T0, dtype=float)
-    z = np.broadcast_to(np.einsum("...ni,...n->...i", v, t0 / s), batch + (n,))
     rows = np.broadcast_to(s[..., nodes, None] * v[..., nodes, :], batch + (nodes.size, n))
     best = np.einsum("...pi,...i->...p", rows, z)
     when = np.zeros(batch + (nodes.size,))

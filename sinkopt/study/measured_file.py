@@ -38,7 +38,7 @@ from sinkopt.errors import InputError
 from sinkopt.fans.units import lookup_unit, unit_choices
 from sinkopt.model.calibration import Measurements
 
-__all__ = ["MeasuredFile", "read_measured_file", "GEOMETRY_KEYS"]
+__all__ = ["MeasuredFile", "read_measured_file", "GEOMETRY_KEYS", "finite_number"]
 
 GEOMETRY_KEYS = ("width_mm", "length_mm", "fin_height_mm", "fin_thickness_mm", "n_fins",
                  "base_thickness_mm")
@@ -67,7 +67,8 @@ class MeasuredFile:
         return Measurements(flow_m3_s, self.pressure_drop, self.thermal_resistance)
 
 
-def _number(text: str, where: str, column: str) -> float:
+def finite_number(text: str, where: str, column: str) -> float:
+    """A CSV cell as a finite float, or InputError naming the file:line and the column."""
     try:
         v = float(text)
     except ValueError:
@@ -97,7 +98,7 @@ def read_measured_file(path) -> MeasuredFile:
             key, sep, value = line[1:].partition(":")
             key, value = key.strip(), value.split("#")[0].strip()
             if sep and key in _META_NUMBERS:
-                v = _number(value, f"{source}:{lineno}", key)
+                v = finite_number(value, f"{source}:{lineno}", key)
                 lo, hi = _META_NUMBERS[key]
                 if (lo is not None and v <= lo) or (hi is not None and v > hi):
                     raise InputError(f"must lie in ({lo:g}, {hi if hi is not None else '∞'}], "
@@ -173,7 +174,7 @@ def read_measured_file(path) -> MeasuredFile:
         j, factor = cols[role]
         if j >= len(cells) or cells[j] == "":
             return math.nan
-        return _number(cells[j], f"{source}:{lineno}", header[j]) * factor
+        return finite_number(cells[j], f"{source}:{lineno}", header[j]) * factor
 
     flows, dps, rs, tins, lines = [], [], [], [], []
     for lineno, cells in rows:

@@ -25,11 +25,11 @@ Every rule broken raises :class:`InputError` naming the file, line and column.
 from __future__ import annotations
 
 import csv
-import math
 from pathlib import Path
 
 from sinkopt.errors import InputError
 from sinkopt.model.problem import LoadProfile
+from sinkopt.study.measured_file import finite_number as _number
 
 __all__ = ["read_profile", "TIME_UNITS", "POWER_UNITS"]
 
@@ -40,16 +40,6 @@ _LOAD_COLUMNS = {"load_pct": 0.01, "load_fraction": 1.0}
 #: A profile this long has no business in a thermal time scale of seconds to hours (one week).
 MAX_DURATION_S = 7 * 24 * 3600.0
 MAX_ROWS = 100_000
-
-
-def _number(text: str, where: str, column: str) -> float:
-    try:
-        v = float(text)
-    except ValueError:
-        raise InputError(f"not a number: {text!r}", where, column) from None
-    if not math.isfinite(v):
-        raise InputError(f"not a finite number: {text!r}", where, column)
-    return v
 
 
 def _column_role(name: str, devices) -> tuple[str, str | None, float | None]:
