@@ -16,8 +16,8 @@ def register(sub) -> None:
     rep = sub.add_parser(
         "report", help="rebuild report.html of a results folder",
         description="Rebuild the interactive report (report.html) of a results folder from its "
-                    "stored trials. The study file is the one recorded in run.json if it still "
-                    "exists, else the copy in RESULTS_DIR/inputs/ (or give --study).",
+                    "stored trials and the run's own copy of its inputs (RESULTS_DIR/inputs/tree/"
+                    "), however the originals were edited since (or give --study).",
         formatter_class=argparse.RawDescriptionHelpFormatter)
     rep.add_argument("results_dir", type=Path, metavar="RESULTS_DIR",
                      help="results folder written by 'sinkopt run'")
@@ -45,10 +45,19 @@ def _read_info(out_dir: Path) -> dict:
 
 
 def find_study_file(out_dir: Path, info: dict) -> list[Path]:
-    """Candidate study files, best first: the original recorded in run.json (first of its
-    inputs; relative fan-curve paths resolve from there), then the copy in ``inputs/``."""
+    """Candidate study files, best first: the run's own copy in ``inputs/tree/`` (with its fan
+    files in their relative layout: what the trials were run with), then the original recorded
+    in run.json, then the flat copy in ``inputs/``."""
+    from sinkopt.results.files import INPUT_TREE, input_tree
+
     recorded = [Path(p) for p in (info.get("inputs") or {}) if str(p).endswith(".toml")]
     out: list[Path] = []
+    every = [Path(p) for p in (info.get("inputs") or {})]
+    if recorded and every:
+        rel = dict(zip(every, input_tree(every)))
+        copy = out_dir / "inputs" / INPUT_TREE / rel[recorded[0]]
+        if copy.is_file():
+            out.append(copy)
     for p in recorded[:1]:
         if p.is_file():
             out.append(p)

@@ -23,7 +23,7 @@ from sinkopt import __version__
 from sinkopt.model.problem import Problem
 from sinkopt.results.collect import Results, SCHEMA_VERSION
 
-__all__ = ["write_results", "write_json", "redact_url", "run_info", "calibration_summary", "sha256_file",
+__all__ = ["INPUT_TREE", "input_tree", "write_results", "write_json", "redact_url", "run_info", "calibration_summary", "sha256_file",
            "trials_frame", "pareto_frame"]
 
 
@@ -207,8 +207,29 @@ def write_results(results: Results, out_dir: Path, info: dict[str, Any]) -> None
         write_json(designs / f"trial_{rec['trial']:06d}.json", rec)
     inputs = out / "inputs"
     inputs.mkdir(exist_ok=True)
-    for p in results.problem.inputs:
-        p = Path(p)
-        if p.is_file():
-            shutil.copy2(p, inputs / p.name)
+    files = [Path(p) for p in results.problem.inputs if Path(p).is_file()]
+    for p in files:
+        shutil.copy2(p, inputs / p.name)
+    # the same files in their own relative layout: the copied study finds its fan files, and
+    # `sinkopt report` rebuilds from these copies however the originals were edited since
+    for p, rel in zip(files, input_tree(files)):
+        dst = inputs / INPUT_TREE / rel
+        dst.parent.mkdir(parents=True, exist_ok=True)
+        shutil.copy2(p, dst)
     write_json(out / "run.json", info)
+
+
+#: Sub-folder of ``inputs/`` that keeps the inputs' relative layout.
+INPUT_TREE = "tree"
+
+
+def input_tree(paths) -> list[Path]:
+    """Each path relative to the deepest folder that holds them all (the layout under
+    ``inputs/tree/``)."""
+    import os
+
+    paths = [Path(p).resolve() for p in paths]
+    if not paths:
+        return []
+    base = Path(os.path.commonpath([str(p.parent) for p in paths]))
+    return [p.relative_to(base) for p in paths]
