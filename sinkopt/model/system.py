@@ -511,7 +511,13 @@ def evaluate_params(problem: Problem, params, spreading: str | None = None,
         result.basis_margin = np.where(bad, -PENALTY, _robust_margin(problem, cols, spreading, ev))
     result.near_stall = near_stall
     if perturb is None:
-        result.extras = _dynamics(problem, safe, ev, mounts, bad)
+        # the transients cost a thousand times the steady model: only for designs that meet
+        # every steady constraint (the others are infeasible whatever their transients)
+        steady = _constraints(problem, result, g, bad)
+        skip = bad.copy()
+        for v in steady.values():
+            skip |= v > 0
+        result.extras = _dynamics(problem, safe, ev, mounts, skip)
     result.constraints = _constraints(problem, result, g, bad)
     feasible = ~bad
     for v in result.constraints.values():
@@ -559,13 +565,17 @@ def _dynamics(problem: Problem, g: SinkGeometry, ev: Evaluation, mounts, bad) ->
     heat = sum(d.power for d in problem.devices)
     sink_rise = np.where(bad, np.nan, ev.r_sink * heat)
     if needs_profile(problem):
-        pr = profile_response(problem, g, ev.junction_C, sink_rise)
+        ok = ~bad
+        peak = np.full((len(bad), len(problem.devices)), np.nan)
+        if ok.any():
+            peak[ok] = profile_response(problem, g.take(ok), ev.junction_C[ok],
+                                        sink_rise[ok]).peak_junction_C
         tj_max = np.array([d.tj_max for d in problem.devices], dtype=float)
-        out["profile_peak_junction_C"] = np.max(pr.peak_junction_C, axis=1)
-        out["profile_peak_margin_K"] = np.min(tj_max[None, :] - pr.peak_junction_C, axis=1)
+        out["profile_peak_junction_C"] = np.max(peak, axis=1)
+        out["profile_peak_margin_K"] = np.min(tj_max[None, :] - peak, axis=1)
     if needs_fan_stop(problem):
         ok = ~bad
-        t = np.zeros(len(bad))
+        t = np.full(len(bad), np.nan)  # not computed: a penalty in the constraint
         if ok.any():
             sub = g.take(ok)
             fs = fan_stop_transient(problem, sub, ev.junction_C[ok], sink_rise[ok],
