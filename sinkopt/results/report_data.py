@@ -227,7 +227,7 @@ def table_columns(problem: Problem, records: Sequence[dict[str, Any]]) -> list[d
         columns.append({"key": name, "label": label, "unit": unit,
                         "kind": "int" if name == "n_fins" else "number"})
     if any("fan_speed" in r["params"] for r in records) and problem.air.uses_fans:
-        columns.append({"key": "speed_ratio", "label": "fan speed", "unit": "of rated",
+        columns.append({"key": "fan_speed_pct", "label": "fan speed", "unit": "% of rated",
                         "kind": "number"})
     shown = []
     for o in objective_axes(problem):

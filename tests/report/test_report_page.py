@@ -114,8 +114,9 @@ def test_pareto_rows_are_the_points_of_pareto_csv(demo_dir):
         if key in ("trial", "n_warnings"):
             continue
         for t in designs["trials"]:
-            if key == "fan":
-                assert pts["categorical"]["fan"][index[t]] == pareto.loc[t, "fan"]
+            if key == "fan" or key.startswith("mount_"):
+                column = "fan" if key == "fan" else "mounting_" + key[len("mount_"):]
+                assert pts["categorical"][key][index[t]] == pareto.loc[t, column]
                 continue
             shown = (designs["by_trial"][str(t)]["speed_ratio"] if key == "speed_ratio"
                      else pts["numeric"][key][index[t]])

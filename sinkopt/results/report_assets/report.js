@@ -278,7 +278,7 @@
               focusRange(id));
     }
     var layout = {font: FONT, height: 500, paper_bgcolor: 'rgba(0,0,0,0)',
-                  margin: {l: 0, r: 0, t: 30, b: 0}, showlegend: false,
+                  margin: {l: 0, r: 0, t: 30, b: 20}, showlegend: false,
                   title: {text: '3-D view', font: {size: 13}, x: 0.01},
                   scene: {xaxis: ax(state.x), yaxis: ax(state.y), zaxis: ax(state.z),
                           aspectmode: 'cube'}, uirevision: 'scene'};
