@@ -122,6 +122,9 @@ def cmd_report(args) -> int:
                 .isoformat(timespec="seconds"))
     target = args.out or out_dir / "report.html"
     write_report(results, target, info)
+    from sinkopt.results.files import write_json
+
+    write_json(out_dir / "shortlist.json", {"study": problem.name, "picks": results.short_list()})
     print(f"{len(results.trial_numbers)} trials, {len(results.pareto_trials)} Pareto designs "
           f"-> {target}")
     return 0

@@ -484,6 +484,12 @@ def cmd_run(args) -> int:
     n_front = len(results.pareto_trials)
     print(f"{len(results.trial_numbers)} trials, {int(results.search.feasible.sum())} feasible "
           f"(search model), {n_front} designs on the Pareto front -> {out}")
+    picks = results.short_list()
+    if picks:
+        from sinkopt.cli.pick import format_picks
+
+        print("short list (sinkopt pick " + str(out) + "):")
+        print("\n".join(format_picks(picks)))
     if len(results.trial_numbers) > n_trials:
         print(f"sinkopt: {len(results.trial_numbers) - n_trials} trials more than the {n_trials} "
               "asked for: parallel workers each finish the batch in hand (at most "

@@ -176,6 +176,33 @@ class Results:
     def directions(self) -> list[str]:
         return [OBJECTIVES[o][1] for o in self.problem.objectives]
 
+    def short_list(self) -> list[dict[str, Any]]:
+        """The named picks of the front (sinkopt.results.shortlist), each with its trial,
+        reason and key numbers; empty when the front is."""
+        from sinkopt.results.shortlist import short_list
+
+        if self.exact is None or not len(self.pareto_trials):
+            return []
+        where = {int(t): k for k, t in enumerate(self.exact_trials)}
+        rows = np.array([where[int(t)] for t in self.pareto_trials])
+        cols = self.exact.columns()
+        take = {k: np.asarray(cols[k], dtype=float)[rows]
+                for k in ("volume_cm3", "fan_power_W", "worst_margin_K", "mass_kg",
+                          "airflow_m3_s")}
+        objectives = to_minimization(self.exact.objectives[rows], self.directions)
+        out = []
+        for p in short_list(take["volume_cm3"], take["fan_power_W"], take["worst_margin_K"],
+                            objectives, has_fans=self.problem.air.uses_fans):
+            i = p.index
+            out.append({"pick": p.name, "trial": int(self.pareto_trials[i]), "reason": p.reason,
+                        "volume_cm3": _clean(take["volume_cm3"][i]),
+                        "mass_kg": _clean(take["mass_kg"][i]),
+                        "fan": self.exact.fan_label[rows[i]] or None,
+                        "fan_power_W": _clean(take["fan_power_W"][i]),
+                        "worst_margin_K": _clean(take["worst_margin_K"][i]),
+                        "airflow_m3_h": _clean(take["airflow_m3_s"][i] * 3600.0)})
+        return out
+
     def pareto_records(self) -> list[dict[str, Any]]:
         out = []
         if self.exact is None:

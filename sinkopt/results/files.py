@@ -198,7 +198,15 @@ def write_results(results: Results, out_dir: Path, info: dict[str, Any]) -> None
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
     _atomic_write(out / "trials.csv", trials_frame(results).to_csv(index=False))
-    _atomic_write(out / "pareto.csv", pareto_frame(results).to_csv(index=False))
+    picks = results.short_list()
+    frame = pareto_frame(results)
+    if len(frame):
+        names: dict[int, list[str]] = {}
+        for p in picks:
+            names.setdefault(p["trial"], []).append(p["pick"])
+        frame.insert(1, "pick", ["+".join(names.get(int(t), [])) for t in frame["trial"]])
+    _atomic_write(out / "pareto.csv", frame.to_csv(index=False))
+    write_json(out / "shortlist.json", {"study": results.problem.name, "picks": picks})
     designs = out / "designs"
     if designs.exists():
         for old in designs.glob("trial_*.json"):

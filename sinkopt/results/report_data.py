@@ -925,6 +925,7 @@ def report_data(results: Results, info: dict[str, Any] | None = None) -> dict[st
                     "not_plotted": pareto["not_plotted"]},
         "pareto": pareto,
         "table": {"columns": table_columns(problem, records)},
+        "shortlist": results.short_list(),
         "parcoords": {"dimensions": [{k: v for k, v in d.items() if k not in ("values",
                                                                                "tickvals")}
                                      for d in parcoords["dimensions"]]},

@@ -112,6 +112,7 @@ def _shot(page, name, element=None):
 
 def _click_pareto_point(page, k=0):
     """Click the k-th drawn Pareto point of the 2-D plot; return its trial number."""
+    page.locator("#pareto2d").scroll_into_view_if_needed()  # below the short list
     traces = page.evaluate("""() => document.getElementById('pareto2d')._fullData
         .map((t, i) => [i, t.meta]).filter(x => x[1] === 'pareto').map(x => x[0])""")
     assert traces, "no Pareto trace drawn"

@@ -1173,7 +1173,32 @@
     return t;
   }
 
+  function setupShortList() {
+    var box = document.getElementById('shortlist-box');
+    if (!box) { return; }
+    var picks = D.shortlist || [];
+    if (!picks.length) {
+      box.appendChild(el('p', null, 'No feasible design: the short list is empty.'));
+      return;
+    }
+    var rows = picks.map(function (p) {
+      return [p.pick, p.trial, p.volume_cm3, p.mass_kg, p.fan || '–', p.fan_power_W,
+              p.worst_margin_K, p.airflow_m3_h, p.reason];
+    });
+    var t = table(['pick', 'trial', 'sink volume [cm³]', 'mass [kg]', 'fan', 'fan power [W]',
+                   'worst margin [K]', 'airflow [m³/h]', 'why'], rows, 'shortlist');
+    t.id = 'shortlist-table';
+    t.querySelectorAll('tbody tr').forEach(function (tr, k) {
+      tr.setAttribute('data-trial', String(picks[k].trial));
+      tr.setAttribute('tabindex', '0');
+      tr.style.cursor = 'pointer';
+      tr.addEventListener('click', function () { showDesign(picks[k].trial, true); });
+    });
+    box.appendChild(t);
+  }
+
   function setupTable() {
+    setupShortList();
     var t = buildTable();
     if (!t) { return; }
     var ths = t.querySelectorAll('thead th');
