@@ -68,7 +68,8 @@ def distributions(problem: Problem) -> dict[str, BaseDistribution]:
         if v.is_fixed:
             continue
         if v.kind == "float":
-            out[v.name] = FloatDistribution(float(v.low), float(v.high))
+            out[v.name] = FloatDistribution(float(v.low), float(v.high),
+                                            step=float(v.step) if v.step else None)
         elif v.kind == "int":
             out[v.name] = IntDistribution(int(v.low), int(v.high))
         elif v.kind == "categorical":

@@ -53,7 +53,10 @@ class Encoder:
         cols: dict[str, np.ndarray] = {}
         for j, v in enumerate(self.vars):
             u = np.clip(x[:, j], 0.0, 1.0)
-            if v.kind == "float":
+            if v.kind == "float" and v.step:  # the dimension grid: what a drawing carries
+                n_steps = round((v.high - v.low) / v.step)
+                cols[v.name] = np.round(v.low + np.round(u * n_steps) * v.step, 9)
+            elif v.kind == "float":
                 cols[v.name] = v.low + u * (v.high - v.low)
             elif v.kind == "int":
                 span = int(v.high) - int(v.low) + 1

@@ -63,7 +63,12 @@ _MOUNTING_KEYS = ("name", "interface", "interface_K_cm2_per_W", "contact_area_mm
 _SLAB_KEYS = ("name", "thickness_mm", "conductivity_W_per_mK", "area_mm2")
 _VIA_KEYS = ("name", "vias", "via_drill_mm", "via_plating_um", "board_thickness_mm",
              "pad_area_mm2", "copper_W_per_mK", "board_W_per_mK")
-_SINK_KEYS = ("material", "process", *PROCESS_KEYS, *GEOMETRY_VARIABLES)
+_SINK_KEYS = ("material", "process", *PROCESS_KEYS, *GEOMETRY_VARIABLES, "grid_mm",
+              "fin_thickness_grid_mm")
+#: Dimension grid of the search [mm]: what a drawing carries and a supplier makes (common
+#: practice, no source): 0.5 mm on width, length, fin height and base; 0.1 mm on fin thickness.
+DEFAULT_GRID_MM = 0.5
+DEFAULT_FIN_THICKNESS_GRID_MM = 0.1
 _FLOW_KEYS = {"flow_m3_per_h": 1 / 3600, "flow_m3_per_s": 1.0, "flow_cfm": 4.719474432e-4}
 _AIR_KEYS = ("fan", *_FLOW_KEYS, "approach_velocity_m_per_s", "base_in_airstream", "ducted",
              "duct_width_mm",
@@ -344,13 +349,39 @@ def _sink(root: Table):
         spec = t.number_or_range(key, "-" if integer else "mm", integer=integer, required=True,
                                  minimum=2 if integer else 0, exclusive=not integer, hint=hint)
         out["geometry"][key] = spec
+    grid = t.number("grid_mm", "mm", default=DEFAULT_GRID_MM, minimum=0)
+    fin_grid = t.number("fin_thickness_grid_mm", "mm", default=DEFAULT_FIN_THICKNESS_GRID_MM,
+                        minimum=0)
+    out["grid"] = {k: (fin_grid if k == "fin_thickness_mm" else grid) or None
+                   for k in GEOMETRY_VARIABLES if k != "n_fins"}
+    for key, step in out["grid"].items():
+        spec = out["geometry"].get(key)
+        if step and spec is not None and spec[0] != "fixed":
+            lo, hi = _on_grid(spec[1], spec[2], step)
+            if lo > hi:
+                t.add(key, f"[{spec[1]:g}, {spec[2]:g}] holds no multiple of the {step:g} mm "
+                           f"grid; widen it, or set {'fin_thickness_grid_mm' if key == 'fin_thickness_mm' else 'grid_mm'} = 0")
     return out
 
 
-def _variable(name: str, spec) -> Variable:
+def _on_grid(low: float, high: float, step: float) -> tuple[float, float]:
+    """The range's first and last multiples of ``step`` (a hair of rounding forgiven)."""
+    import math
+
+    lo = math.ceil(low / step - 1e-9) * step
+    hi = math.floor(high / step + 1e-9) * step
+    return round(lo, 9), round(hi, 9)
+
+
+def _variable(name: str, spec, step: float | None = None) -> Variable:
     kind = "int" if name == "n_fins" else "float"
     if spec[0] == "fixed":
         return Variable(name, kind, fixed=spec[1])
+    if step:
+        lo, hi = _on_grid(spec[1], spec[2], step)
+        if lo == hi:
+            return Variable(name, kind, fixed=lo)
+        return Variable(name, kind, low=lo, high=hi, step=step)
     return Variable(name, kind, low=spec[1], high=spec[2])
 
 
@@ -781,7 +812,7 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
     _check_dynamics(problems, root, objectives, limits, still_ok)
     problems.raise_if_any()
 
-    variables = [_variable(k, sink["geometry"][k]) for k in GEOMETRY_VARIABLES]
+    variables = [_variable(k, sink["geometry"][k], sink["grid"].get(k)) for k in GEOMETRY_VARIABLES]
     if air.uses_fans:
         labels = tuple(fan_choices(air))
         variables.append(Variable("fan", "categorical", choices=labels,
