@@ -68,3 +68,40 @@ def test_the_run_writes_and_prints_the_short_list(tmp_path, capsys):
 def test_pick_on_a_folder_without_results_is_a_clear_error(tmp_path, capsys):
     assert main(["pick", str(tmp_path)]) == 2
     assert "no shortlist.json" in capsys.readouterr().err
+
+
+def test_weighted_pick_by_hand():
+    from sinkopt.results.shortlist import weighted_index
+
+    # normalised: (0,1), (0.4,0.3), (1,0); weights (1,3): sums 3, 1.3, 1 -> the third design
+    assert weighted_index([[0.0, 10.0], [4.0, 7.0], [10.0, 0.0]], [1.0, 3.0]) == 2
+    assert weighted_index([[0.0, 10.0], [2.0, 3.0], [10.0, 0.0]], [1.0, 1.0]) == 1  # 1, 0.5, 1
+
+
+def _with(tmp_path, table):
+    text = DEMO.read_text().replace("../catalogs/", str(ROOT / "catalogs") + "/") + table
+    path = tmp_path / "w.toml"
+    path.write_text(text)
+    return path
+
+
+def test_the_study_weights_add_a_pick(tmp_path, capsys):
+    path = _with(tmp_path, "\n[shortlist]\nweights = { fan_power = 3, sink_volume = 1 }\n")
+    out = tmp_path / "r"
+    assert main(["run", str(path), "--trials", "40", "--seed", "3", "--no-progress",
+                 "--out", str(out)]) == 0
+    picks = json.loads((out / "shortlist.json").read_text())["picks"]
+    mine = [p for p in picks if p["pick"] == "your weights"]
+    assert len(mine) == 1 and "fan_power × 3, sink_volume × 1" in mine[0]["reason"]
+
+
+@pytest.mark.parametrize("table,message", [
+    ("weights = { noise = 1 }", "unknown key"),
+    ("weights = { fan_power = -1 }", "must be >= 0"),
+    ("weights = { fan_power = 0 }", "at least one weight must be > 0"),
+])
+def test_bad_weights_say_which_key(tmp_path, capsys, table, message):
+    path = _with(tmp_path, "\n[shortlist]\n" + table + "\n")
+    assert main(["check", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert "shortlist" in err and message in err

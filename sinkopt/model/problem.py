@@ -252,6 +252,8 @@ class Problem:
     specific_heat: float = 900.0  #: sink material [J/(kg K)]
     #: A load profile (``[load_profile]``), or None.
     load_profile: LoadProfile | None = None
+    #: The user's own weights of the objectives for a short-list pick (``[shortlist]``).
+    pick_weights: tuple[tuple[str, float], ...] = ()
 
     @property
     def slug(self) -> str:

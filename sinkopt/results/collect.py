@@ -191,8 +191,12 @@ class Results:
                           "airflow_m3_s")}
         objectives = to_minimization(self.exact.objectives[rows], self.directions)
         out = []
+        given = dict(self.problem.pick_weights)
+        weights = ([given.get(o, 0.0) for o in self.problem.objectives] if given else None)
+        text = ", ".join(f"{o} × {w:g}" for o, w in self.problem.pick_weights)
         for p in short_list(take["volume_cm3"], take["fan_power_W"], take["worst_margin_K"],
-                            objectives, has_fans=self.problem.air.uses_fans):
+                            objectives, has_fans=self.problem.air.uses_fans, weights=weights,
+                            weight_text=text):
             i = p.index
             out.append({"pick": p.name, "trial": int(self.pareto_trials[i]), "reason": p.reason,
                         "volume_cm3": _clean(take["volume_cm3"][i]),

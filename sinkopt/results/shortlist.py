@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["Pick", "knee_index", "short_list"]
+__all__ = ["Pick", "knee_index", "weighted_index", "short_list"]
 
 
 @dataclass(frozen=True)
@@ -56,7 +56,21 @@ def knee_index(front) -> int:
     return int(np.argmax(distance))
 
 
-def short_list(volume, fan_power, margin, objectives, has_fans: bool = True) -> list[Pick]:
+def weighted_index(front, weights) -> int:
+    """Row of ``front`` (m, k), objectives to minimise, with the least weighted sum of the
+    objectives normalised to [0, 1] over the front (``weights`` (k,), ≥ 0).
+
+    >>> weighted_index([[0.0, 1.0], [0.4, 0.3], [1.0, 0.0]], [1.0, 3.0])
+    2
+    """
+    f = np.asarray(front, dtype=float)
+    lo, hi = f.min(axis=0), f.max(axis=0)
+    z = (f - lo) / np.where(hi > lo, hi - lo, 1.0)
+    return int(np.argmin(z @ np.asarray(weights, dtype=float)))
+
+
+def short_list(volume, fan_power, margin, objectives, has_fans: bool = True,
+               weights=None, weight_text: str = "") -> list[Pick]:
     """The named picks of a front of m feasible designs: ``volume`` [cm³], ``fan_power`` [W],
     ``margin`` [K] (m,), and ``objectives`` (m, k) to minimise for the knee. A design can
     carry several picks."""
@@ -76,4 +90,7 @@ def short_list(volume, fan_power, margin, objectives, has_fans: bool = True) -> 
     out.append(Pick("balanced (knee)", knee_index(objectives),
                     "the knee of the front (Das 1999): the farthest from the plane through the "
                     "extreme designs, where the trade-off bends"))
+    if weights is not None:
+        out.append(Pick("your weights", weighted_index(objectives, weights),
+                        f"the least weighted sum of the normalised objectives ({weight_text})"))
     return out

@@ -49,7 +49,7 @@ __all__ = ["load_study", "parse_study", "fan_label", "fan_choices", "fan_speed_r
            "mount_variable", "SAMPLERS", "SECTIONS", "FAN_SPEED_MAX"]
 
 SECTIONS = ("study", "ambient", "device", "sink", "air", "objectives", "constraints", "model",
-            "uncertainty", "fans_stopped", "load_profile")
+            "uncertainty", "fans_stopped", "load_profile", "shortlist")
 #: Highest allowed fan speed, as a fraction of the rated speed (fan laws beyond the data).
 FAN_SPEED_MAX = 1.2
 #: Default junction margin [K]: common practice is 10-25 K below tj_max (common practice, no source).
@@ -747,6 +747,30 @@ def _model(root: Table, base_dir: Path, inputs: list[Path]):
     return options, calibration
 
 
+def _pick_weights(root: Table, objectives) -> tuple[tuple[str, float], ...] | None:
+    """``[shortlist] weights = {objective = weight, ...}``: a pick of the user's own."""
+    data = root.table("shortlist")
+    if data is None:
+        return ()
+    t = Table(data, "shortlist", root.problems, ("weights",))
+    weights = t.table("weights", required=True,
+                      hint="{objective = weight, ...} over the study's objectives")
+    if weights is None or objectives is None:
+        return None
+    w = Table(weights, t.at("weights"), root.problems, objectives)
+    out = []
+    for name in weights:
+        if name in objectives:
+            v = w.number(name, "-", minimum=0)
+            if v is None:
+                return None
+            out.append((name, float(v)))
+    if out and not any(v > 0 for _, v in out):
+        t.add("weights", "at least one weight must be > 0")
+        return None
+    return tuple(out) if len(out) == len(weights) else None
+
+
 def _check_dynamics(problems, root: Table, objectives, limits, still_ok: bool) -> None:
     """Objectives and constraints on the transients need the tables that describe them."""
     uses = set(objectives or ())
@@ -808,6 +832,7 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
     uncertainty = _uncertainty(root)
     still_air, still_ok = _still_air(root)
     profile, _ = _load_profile(root, base_dir, devices, inputs)
+    pick_weights = _pick_weights(root, objectives)
     cross_check(problems, sink, devices, air, objectives, limits, ambient)
     _check_dynamics(problems, root, objectives, limits, still_ok)
     problems.raise_if_any()
@@ -848,6 +873,7 @@ def parse_study(text: str, source: str = "<study>", base_dir=None) -> Problem:
         still_air=still_air,
         specific_heat=material.specific_heat,
         load_profile=profile,
+        pick_weights=pick_weights or (),
     )
 
 
