@@ -22,7 +22,7 @@ __all__ = ["main", "build_parser", "EXIT_OK", "EXIT_INTERNAL", "EXIT_INPUT", "EX
 
 
 # Modules under sinkopt.cli that provide ``register(subparsers)``.
-COMMAND_MODULES = ("fan", "study", "setup", "calibrate", "worker", "report", "pick")
+COMMAND_MODULES = ("fan", "study", "setup", "calibrate", "worker", "report", "pick", "drawing")
 
 
 def build_parser() -> argparse.ArgumentParser:

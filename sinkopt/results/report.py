@@ -324,11 +324,17 @@ def render_report(results: Results, info: dict[str, Any] | None = None) -> str:
 
 
 def write_report(results: Results, path, info: dict[str, Any] | None = None) -> Path:
-    """Write the report page to ``path`` (atomically) and return the path."""
+    """Write the report page to ``path`` (atomically) and, into ``drawings/`` beside it, the
+    drawings and design sheets of the short list's designs
+    (:func:`sinkopt.results.drawing.write_report_drawings`); return the page's path."""
     path = Path(path)
     text = render_report(results, info)
     path.parent.mkdir(parents=True, exist_ok=True)
     tmp = path.with_name(f".{path.name}.tmp{os.getpid()}")
     tmp.write_text(text, encoding="utf-8")
     os.replace(tmp, path)
+    # the drawings the design panel links to (the short list's designs), beside the page
+    from sinkopt.results.drawing import DRAWINGS_DIR, write_report_drawings
+
+    write_report_drawings(results, path.parent / DRAWINGS_DIR, info, cautions=SAFETY_HTML)
     return path

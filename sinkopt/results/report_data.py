@@ -912,6 +912,8 @@ def report_data(results: Results, info: dict[str, Any] | None = None) -> dict[st
     ``dimensions`` of :func:`parcoords_data` without their values), ``fans``
     (:func:`fan_curves`), ``designs`` (:func:`design_data`), ``inputs``
     (:func:`study_inputs_data`)."""
+    from sinkopt.results.drawing import DRAWINGS_DIR, drawing_trials
+
     problem = results.problem
     records = results.pareto_records()
     pareto = pareto_plot_data(results)
@@ -926,6 +928,8 @@ def report_data(results: Results, info: dict[str, Any] | None = None) -> dict[st
         "pareto": pareto,
         "table": {"columns": table_columns(problem, records)},
         "shortlist": results.short_list(),
+        # designs whose SVG/DXF drawing and design sheet sit in drawings/ beside the page
+        "drawings": {"folder": DRAWINGS_DIR, "trials": drawing_trials(results)},
         "parcoords": {"dimensions": [{k: v for k, v in d.items() if k not in ("values",
                                                                                "tickvals")}
                                      for d in parcoords["dimensions"]]},

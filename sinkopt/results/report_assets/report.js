@@ -887,6 +887,23 @@
     drawings.appendChild(f1);
     drawings.appendChild(f2);
     panel.appendChild(drawings);
+    /* the drawing files beside the page (sinkopt.results.drawing), or how to write them */
+    var files = el('p', {'class': 'note', id: 'drawing-files'});
+    var DW = D.drawings || {folder: 'drawings', trials: []};
+    if (DW.trials.indexOf(trial) >= 0) {
+      files.appendChild(document.createTextNode('Drawing files: '));
+      [['.svg', 'SVG drawing'], ['.dxf', 'DXF drawing'], ['-sheet.html', 'design sheet (prints on A4)']]
+        .forEach(function (f, k) {
+          if (k) { files.appendChild(document.createTextNode(' · ')); }
+          files.appendChild(el('a', {href: DW.folder + '/design-' + trial + f[0], target: '_blank',
+                                     rel: 'noopener'}, f[1]));
+        });
+      files.appendChild(document.createTextNode(' (mounting holes left to you).'));
+    } else {
+      files.textContent = 'Drawing files (SVG, DXF, design sheet): sinkopt drawing RESULTS_DIR --trial ' +
+        trial + ' writes them.';
+    }
+    panel.appendChild(files);
 
     var curves = designCurves(trial);
     var pair = figurePair(panel, [curves.fan_curve ?
