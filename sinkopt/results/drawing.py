@@ -192,6 +192,7 @@ class Dim:
     vertical: bool = False
     label: str = ""
     text_at: tuple[float, float] | None = None
+    text_align: str = "left"  #: of the text at ``text_at``: "left" or "right" of the point
 
     @property
     def value(self) -> float:
@@ -242,19 +243,26 @@ def design_drawing(shape: SinkShape, footprints: Sequence[Footprint] = (),
     sec = View("SECTION_A_A")
     sec.items.append(Poly(tuple(s.section_outline()), "OUTLINE", True, hatch=True))
     sec.items.append(Dim((0.0, 0.0), (W, 0.0), -d, label="W"))
+    def fits(value: float, label: str) -> bool:  # the text fits between the extension lines
+        return value > 0.6 * h * len(f"{label} {fmt_mm(value)}") + 1.2 * h
+
+    base_out = not fits(tb, "base")
     sec.items.append(Dim((W, 0.0), (W, tb), W + d, vertical=True, label="base",
-                         text_at=None if tb > 4 * h else (W + d + 0.8 * h, tb / 2)))
-    sec.items.append(Dim((W, tb), (W, top), W + d, vertical=True, label="fin H"))
-    sec.items.append(Dim((W, 0.0), (W, top), W + d + 6 * h, vertical=True))
-    # fin thickness on the last fin, gap and pitch between the first two fins; a text that
-    # does not fit between its extension lines goes right of them
+                         text_at=(W + d + 0.8 * h, tb / 2) if base_out else None))
+    fin_y = max(tb + H / 2, tb / 2 + 1.5 * h) if base_out else tb + H / 2
+    sec.items.append(Dim((W, tb), (W, top), W + d, vertical=True, label="fin H",
+                         text_at=None if fits(H, "fin H") else (W + d + 0.8 * h, fin_y)))
+    sec.items.append(Dim((W, 0.0), (W, top), W + d + 7 * h, vertical=True))
+    # fin thickness on the last fin (text to its right), gap and pitch between the first two
+    # fins (text to their left when it does not fit between the extension lines)
     sec.items.append(Dim((W - t, top), (W, top), top + d, label="t",
-                         text_at=(W + 0.6 * h, top + d + 0.9 * h)))
+                         text_at=None if fits(t, "t") else (W + 0.6 * h, top + d + 0.9 * h)))
     sec.items.append(Dim((x[0] + t, top), (x[1], top), top + d, label="gap",
-                         text_at=(x[1] + 0.6 * h, top + d + 0.9 * h) if s.gap < 6 * h else None))
+                         text_at=None if fits(s.gap, "gap") else (-2.4 * h, top + d + 0.9 * h),
+                         text_align="right"))
     sec.items.append(Dim((x[0], top), (x[1], top), top + 2 * d, label="pitch",
-                         text_at=(x[1] + 0.6 * h, top + 2 * d + 0.9 * h)
-                         if s.pitch < 7 * h else None))
+                         text_at=None if fits(s.pitch, "pitch")
+                         else (-2.4 * h, top + 2 * d + 0.9 * h), text_align="right"))
     sec.items.append(Text(W / 2, top + 3 * d, f"{s.n_fins} fins, equally spaced over W",
                           h, "center"))
     sec.items.append(Text(W / 2, top + 3 * d + 1.8 * h, "SECTION A–A  across the fins", 1.2 * h,
@@ -263,7 +271,7 @@ def design_drawing(shape: SinkShape, footprints: Sequence[Footprint] = (),
                           h, "center"))
 
     # --- plan from the fin side, inlet edge at the bottom
-    x0 = W + d + 12 * h  # right of the section's vertical dimensions and texts
+    x0 = W + d + 12.5 * h  # right of the section's vertical dimensions and texts
     plan = View("PLAN")
     plan.items.append(Poly(((x0, 0.0), (x0 + W, 0.0), (x0 + W, L), (x0, L)), "OUTLINE"))
     for i, xi in enumerate(x):
@@ -351,7 +359,7 @@ def _dim_texts(dm: Dim, h: float) -> list[Text]:
     """Where a dimension's text goes: above the middle of its line (horizontal), left of it and
     rotated (vertical), or at ``text_at``."""
     if dm.text_at is not None:
-        return [Text(dm.text_at[0], dm.text_at[1], dm.text, h, "left", "DIMENSIONS")]
+        return [Text(dm.text_at[0], dm.text_at[1], dm.text, h, dm.text_align, "DIMENSIONS")]
     if dm.vertical:
         ym = (dm.p1[1] + dm.p2[1]) / 2
         return [Text(dm.at - 0.9 * h, ym, dm.text, h, "center", "DIMENSIONS", rotation=90)]
@@ -520,7 +528,9 @@ def drawing_dxf(drawing: Drawing):
             location = rotation = None
             if it.text_at is not None:
                 rotation = 0.0
-                location = (it.text_at[0] + 0.6 * h * len(it.text) / 2, it.text_at[1])
+                half = 0.6 * h * len(it.text) / 2  # DXF places the text by its middle
+                location = (it.text_at[0] + (half if it.text_align == "left" else -half),
+                            it.text_at[1])
                 ov["dimtmove"] = 2  # text moved freely, no leader
             dim = msp.add_linear_dim(base=base, p1=it.p1, p2=it.p2, location=location,
                                      text=label, angle=angle, text_rotation=rotation,
